@@ -81,6 +81,25 @@ public abstract partial class ResourceStoreContract
     }
 
     [SkippableFact]
+    public async Task SearchAsync_ByLastUpdatedNotIn_ExcludesEachRange()
+    {
+        await using var store = await CreateStoreAsync();
+        foreach (var id in new[] { "t0", "t1", "t2", "t3" })
+        {
+            await WriteAllAsync(store, TestResources.ObservationOf(id, "p"));
+            Time.Advance(TimeSpan.FromHours(1));
+        }
+
+        Assert.Equal(["t0", "t3"], await IdsAsync(store, new SearchQuery("Observation") { LastUpdatedNotIn = [new InstantRange(Start.AddHours(1), Start.AddHours(3))] }));
+        Assert.Equal(["t2"], await IdsAsync(store, new SearchQuery("Observation")
+        {
+            LastUpdated = [new InstantRange(Start.AddHours(1), null)],
+            LastUpdatedNotIn = [new InstantRange(Start.AddHours(1), Start.AddHours(2)), new InstantRange(Start.AddHours(3), null)],
+        }));
+        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { LastUpdatedNotIn = [new InstantRange(null, null)] }));
+    }
+
+    [SkippableFact]
     public async Task SearchAsync_SeveralCriteria_AllMustHold()
     {
         await using var store = await CreateStoreAsync();

@@ -243,6 +243,23 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
             }
         }
 
+        foreach (var range in query.LastUpdatedNotIn ?? [])
+        {
+            var outside = new List<string>();
+            if (range.From is { } from)
+            {
+                outside.Add("r.last_updated < " + Next(from.ToUnixTimeMilliseconds()));
+            }
+
+            if (range.Until is { } until)
+            {
+                outside.Add("r.last_updated >= " + Next(until.ToUnixTimeMilliseconds()));
+            }
+
+            // A range open at both ends covers every instant, so nothing lies outside it.
+            where.Append(outside.Count == 0 ? " AND 1 = 0" : $" AND ({string.Join(" OR ", outside)})");
+        }
+
         if (query.PatientId is { } patientId)
         {
             where.Append(" AND r.patient_id = ").Append(Next(patientId));
