@@ -335,7 +335,7 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         await command.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
     }
 
-    private static StoredResource ToStored(DbDataReader reader, string resourceType, string id) => new(
+    internal static StoredResource ToStored(DbDataReader reader, string resourceType, string id) => new(
         resourceType,
         id,
         reader.GetInt32(0),
