@@ -105,7 +105,7 @@ public sealed class BundlePlanner(SearchService search)
                 RequireResource(plan, target);
                 if (!string.IsNullOrEmpty(request.IfNoneExist))
                 {
-                    if (search.TryParse(target.Type, QueryHelpers.ParseQuery(request.IfNoneExist), strict: true, out var condition, out var issues))
+                    if (search.TryParseSearch(target.Type, QueryHelpers.ParseQuery(request.IfNoneExist), strict: true, out var condition, out var issues))
                     {
                         plan.Condition = condition! with { Query = condition.Query with { Count = 2, Offset = 0 } };
                     }
@@ -165,7 +165,7 @@ public sealed class BundlePlanner(SearchService search)
                 }
                 else if (target.Id is null)
                 {
-                    if (search.TryParse(target.Type, QueryHelpers.ParseQuery(target.Query ?? ""), strict: false, out var parsed, out var issues))
+                    if (search.TryParseSearch(target.Type, QueryHelpers.ParseQuery(target.Query ?? ""), strict: false, out var parsed, out var issues))
                     {
                         plan.Search = parsed;
                     }

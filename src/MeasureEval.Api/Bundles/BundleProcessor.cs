@@ -104,9 +104,12 @@ public sealed class BundleProcessor(IResourceStore store, BundlePlanner planner,
             }
         }
 
-        foreach (var plan in ordered.Where(p => p.Method == Bundle.HTTPVerb.PUT && p.Entry.FullUrl is { Length: > 0 }))
+        foreach (var plan in ordered.Where(p => p.Method == Bundle.HTTPVerb.PUT))
         {
-            references[plan.Entry.FullUrl] = $"{plan.Target!.Type}/{plan.Target.Id}";
+            if (plan.Entry.FullUrl is { Length: > 0 } fullUrl)
+            {
+                references[fullUrl] = $"{plan.Target!.Type}/{plan.Target.Id}";
+            }
         }
 
         foreach (var plan in ordered.Where(p => p.Method is Bundle.HTTPVerb.POST or Bundle.HTTPVerb.PUT))

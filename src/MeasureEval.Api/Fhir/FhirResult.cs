@@ -1,5 +1,6 @@
 using System.Globalization;
 using System.Text;
+using System.Text.Encodings.Web;
 using System.Text.Json;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Errors;
@@ -87,7 +88,8 @@ public sealed class FhirResult : IResult, IStatusCodeHttpResult
 
         var format = FhirFormat.Of(httpContext);
         response.ContentType = format.MediaType + "; charset=utf-8";
-        var options = new JsonWriterOptions { Indented = format.Pretty, SkipValidation = !format.Pretty };
+        // Relaxed escaping keeps ', & and + readable; the body is JSON, never embedded in HTML.
+        var options = new JsonWriterOptions { Indented = format.Pretty, SkipValidation = !format.Pretty, Encoder = JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
         await using (var writer = new Utf8JsonWriter(response.BodyWriter, options))
         {
             if (Resource is not null)

@@ -111,7 +111,15 @@ public sealed partial class IngestProcessor(IResourceStore store, IOptions<Inges
         parameters.Add("refused", new Integer(summary.Refused));
         foreach (var (type, count) in summary.StoredByType)
         {
-            parameters.Add("type", [Tuple.Create("resourceType", (DataType)new Code(type)), Tuple.Create("stored", (DataType)new Integer(count))]);
+            parameters.Parameter.Add(new Parameters.ParameterComponent
+            {
+                Name = "type",
+                Part =
+                [
+                    new Parameters.ParameterComponent { Name = "resourceType", Value = new Code(type) },
+                    new Parameters.ParameterComponent { Name = "stored", Value = new Integer(count) },
+                ],
+            });
         }
 
         var outcomeIssues = summary.Issues.Count > 0

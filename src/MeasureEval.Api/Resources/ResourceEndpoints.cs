@@ -173,7 +173,7 @@ public static class ResourceEndpoints
         var ifNoneExist = request.Headers["If-None-Exist"].ToString();
         if (ifNoneExist.Length > 0)
         {
-            if (search.TryParse(type, QueryHelpers.ParseQuery(ifNoneExist), strict: true, out condition, out var conditionIssues))
+            if (search.TryParseSearch(type, QueryHelpers.ParseQuery(ifNoneExist), strict: true, out condition, out var conditionIssues))
             {
                 condition = condition! with { Query = condition.Query with { Count = 2, Offset = 0 } };
             }

@@ -45,7 +45,7 @@ public static class SearchEndpoints
     private static async Task<FhirResult> RunAsync(
         string type, IEnumerable<KeyValuePair<string, StringValues>> parameters, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken)
     {
-        if (!search.TryParse(type, parameters, FhirPrefer.Of(request).StrictHandling, out var parsed, out var issues))
+        if (!search.TryParseSearch(type, parameters, FhirPrefer.Of(request).StrictHandling, out var parsed, out var issues))
         {
             return FhirResult.Outcome(issues);
         }

@@ -21,7 +21,7 @@ public static class SearchParameterRegistry
 
     private static readonly SearchParameterDefinition LastUpdatedParameter = new(
         "_lastUpdated", SearchParamType.Date, SearchParameterKind.LastUpdated, "http://hl7.org/fhir/SearchParameter/Resource-lastUpdated",
-        "meta.lastUpdated; prefixes eq, gt, lt, ge, le, sa, eb; the value's precision sets the range; values without a zone are UTC.");
+        "meta.lastUpdated; prefixes eq, ne, gt, lt, ge, le, sa, eb; the value's precision sets the range; values without a zone are UTC.");
 
     /// <summary>The reference parameters that name a resource's patient, per type (R4 search parameter registry).</summary>
     private static readonly Dictionary<string, string[]> PatientParameters = new(StringComparer.Ordinal)

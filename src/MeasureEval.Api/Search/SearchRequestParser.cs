@@ -33,6 +33,7 @@ public static partial class SearchRequestParser
         var recognized = new List<KeyValuePair<string, string>>();
         HashSet<string>? ids = null;
         var ranges = new List<InstantRange>();
+        var excluded = new List<InstantRange>();
         string? patientId = null;
         List<TokenValue>? identifiers = null;
         var count = options.DefaultPageSize;
@@ -104,7 +105,7 @@ public static partial class SearchRequestParser
 
                         break;
                     case SearchParameterKind.LastUpdated:
-                        ParseLastUpdated(name, value, ranges, errors);
+                        ParseLastUpdated(name, value, ranges, excluded, errors);
                         break;
                     case SearchParameterKind.PatientReference:
                         if (TryPatientId(name, value, errors, out var pid))
@@ -139,6 +140,7 @@ public static partial class SearchRequestParser
         {
             Ids = ids is null ? null : [.. ids.Order(StringComparer.Ordinal)],
             LastUpdated = ranges.Count > 0 ? ranges : null,
+            LastUpdatedNotIn = excluded.Count > 0 ? excluded : null,
             PatientId = patientId,
             Identifiers = identifiers,
             Count = count,
@@ -189,7 +191,7 @@ public static partial class SearchRequestParser
         return true;
     }
 
-    private static void ParseLastUpdated(string name, string value, List<InstantRange> ranges, List<FhirIssue> errors)
+    private static void ParseLastUpdated(string name, string value, List<InstantRange> ranges, List<InstantRange> excluded, List<FhirIssue> errors)
     {
         var prefix = value.Length >= 2 && char.IsAsciiLetterLower(value[0]) && char.IsAsciiLetterLower(value[1]) ? value[..2] : "eq";
         var dateText = value.Length >= 2 && char.IsAsciiLetterLower(value[0]) ? value[2..] : value;
@@ -203,12 +205,13 @@ public static partial class SearchRequestParser
         switch (prefix)
         {
             case "eq": ranges.Add(new InstantRange(start, end)); break;
+            case "ne": excluded.Add(new InstantRange(start, end)); break;
             case "gt" or "sa": ranges.Add(new InstantRange(end, null)); break;
             case "ge": ranges.Add(new InstantRange(start, null)); break;
             case "lt" or "eb": ranges.Add(new InstantRange(null, start)); break;
             case "le": ranges.Add(new InstantRange(null, end)); break;
             default:
-                errors.Add(new FhirIssue(ErrorCatalogue.UnsupportedSearchForm, $"Prefix '{prefix}' is not supported on {name}; use eq, gt, lt, ge, le, sa or eb.", name));
+                errors.Add(new FhirIssue(ErrorCatalogue.UnsupportedSearchForm, $"Prefix '{prefix}' is not supported on {name}; use eq, ne, gt, lt, ge, le, sa or eb.", name));
                 break;
         }
     }

@@ -11,7 +11,7 @@ namespace MeasureEval.Api.Search;
 /// <summary>Parses a search, runs it against a store or a write session, and builds the searchset Bundle with paging links.</summary>
 public sealed class SearchService(IOptions<SearchOptions> options)
 {
-    public bool TryParse(string resourceType, IEnumerable<KeyValuePair<string, StringValues>> parameters, bool strict, out ParsedSearch? parsed, out IReadOnlyList<FhirIssue> issues) =>
+    public bool TryParseSearch(string resourceType, IEnumerable<KeyValuePair<string, StringValues>> parameters, bool strict, out ParsedSearch? parsed, out IReadOnlyList<FhirIssue> issues) =>
         SearchRequestParser.TryParse(resourceType, parameters, options.Value, strict, out parsed, out issues);
 
     public static async Task<SearchResult> RunAsync(ParsedSearch parsed, Func<SearchQuery, CancellationToken, Task<SearchResult>> run, CancellationToken cancellationToken)
