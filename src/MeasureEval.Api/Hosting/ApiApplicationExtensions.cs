@@ -23,6 +23,8 @@ public static class ApiApplicationExtensions
         app.UseExceptionHandler();
         app.UseFhirStatusCodeOutcomes();
         app.UseMeasureEvalOpenApi();
+        // Routing after the docs middleware, so requests it serves are not matched (and logged) as FHIR routes.
+        app.UseRouting();
         return app;
     }
 

@@ -3,6 +3,7 @@ using Microsoft.AspNetCore.Http;
 using Microsoft.AspNetCore.Routing;
 using Microsoft.Extensions.DependencyInjection;
 using Serilog;
+using Serilog.Core;
 using Serilog.Events;
 using Serilog.Formatting.Compact;
 
@@ -35,7 +36,9 @@ public static class LoggingSetup
                 .MinimumLevel.Override("Microsoft.AspNetCore", LogEventLevel.Warning)
                 // It logs exception messages, which may quote request data; FhirExceptionHandler logs instead.
                 .MinimumLevel.Override("Microsoft.AspNetCore.Diagnostics.ExceptionHandlerMiddleware", LogEventLevel.Fatal)
-                .Enrich.FromLogContext();
+                .Enrich.FromLogContext()
+                // The framework's request scope adds the raw path; ids in it can identify a patient.
+                .Enrich.With<DropRequestPathEnricher>();
             if (json)
             {
                 config.WriteTo.Console(new RenderedCompactJsonFormatter());
@@ -52,7 +55,7 @@ public static class LoggingSetup
     public static IApplicationBuilder UseMeasureEvalRequestLogging(this IApplicationBuilder app) =>
         app.UseSerilogRequestLogging(options =>
         {
-            options.MessageTemplate = "HTTP {RequestMethod} {RouteTemplate} responded {StatusCode} in {Elapsed:0.0} ms";
+            options.MessageTemplate = "HTTP {RequestMethod:l} {RouteTemplate:l} responded {StatusCode} in {Elapsed:0.0} ms";
             options.GetMessageTemplateProperties = (context, _, elapsed, status) =>
             [
                 new LogEventProperty("RequestMethod", new ScalarValue(context.Request.Method)),
@@ -64,4 +67,9 @@ public static class LoggingSetup
 
     private static string RouteTemplateOf(HttpContext context) =>
         context.GetEndpoint() is RouteEndpoint endpoint ? "/" + (endpoint.RoutePattern.RawText ?? "").TrimStart('/') : "(no route)";
+
+    private sealed class DropRequestPathEnricher : ILogEventEnricher
+    {
+        public void Enrich(LogEvent logEvent, ILogEventPropertyFactory propertyFactory) => logEvent.RemovePropertyIfPresent("RequestPath");
+    }
 }
