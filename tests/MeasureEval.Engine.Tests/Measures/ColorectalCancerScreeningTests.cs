@@ -117,6 +117,7 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("hospice-service-request", 1, 1, 1, 0, 0)] // ServiceRequest active, intent order
     [InlineData("hospice-service-request-draft", 1, 1, 0, 0, 0)] // ServiceRequest must be active or completed
     [InlineData("hospice-service-request-proposal", 1, 1, 0, 0, 0)] // intent proposal is neither order (or a child) nor plan
+    [InlineData("hospice-service-request-original-order", 1, 1, 1, 0, 0)] // original-order is a child intent of order
     [InlineData("hospice-service-request-plan", 1, 1, 1, 0, 0)] // completed, intent plan
     [InlineData("palliative-condition-z51-5", 1, 1, 1, 0, 0)] // Condition Z51.5 overlapping MP
     [InlineData("palliative-condition-abated-before-period", 1, 1, 0, 0, 0)] // abated the day before MP: no overlap

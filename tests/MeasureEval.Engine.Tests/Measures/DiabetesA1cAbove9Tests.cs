@@ -31,6 +31,9 @@ public sealed class DiabetesA1cAbove9Tests
     [InlineData("diabetes-abatement-partial-month", 1, 1, 0, 0, 1)] // abatement's last day 2026-01-31 is in MP
     [InlineData("diabetes-abatement-age", 1, 1, 0, 0, 1)] // abatementAge 56 a + birthDate = 2026-05-05, in MP
     [InlineData("diabetes-onset-age", 1, 1, 0, 0, 1)] // onsetAge 40 a + birthDate = 2010-05-05
+    [InlineData("diabetes-onset-range", 1, 1, 0, 0, 1)] // onsetRange.low 40 a + birthDate = 2010-05-05
+    [InlineData("diabetes-abatement-period-end", 0, 0, 0, 0, 0)] // abatementPeriod.end 2025-12-31 is before MP
+    [InlineData("diabetes-abatement-range-high", 1, 1, 0, 0, 1)] // abatementRange.high 56 a + birthDate = 2026-05-05, in MP
     [InlineData("diabetes-onset-on-period-end", 1, 1, 0, 0, 1)] // onset on periodEnd overlaps
     [InlineData("diabetes-onset-after-period", 0, 0, 0, 0, 0)] // onset after periodEnd
     [InlineData("diabetes-onset-partial-month", 1, 1, 0, 0, 1)] // onset uses the first day, 2026-12-01

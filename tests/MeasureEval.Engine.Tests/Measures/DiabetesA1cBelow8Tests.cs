@@ -31,6 +31,9 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("diabetes-abatement-partial-month", 1, 1, 0, 0, 0)] // abatement's last day 2026-01-31 is in MP
     [InlineData("diabetes-abatement-age", 1, 1, 0, 0, 0)] // abatementAge 56 a + birthDate = 2026-05-05, in MP
     [InlineData("diabetes-onset-age", 1, 1, 0, 0, 0)] // onsetAge 40 a + birthDate = 2010-05-05
+    [InlineData("diabetes-onset-range", 1, 1, 0, 0, 0)] // onsetRange.low 40 a + birthDate = 2010-05-05
+    [InlineData("diabetes-abatement-period-end", 0, 0, 0, 0, 0)] // abatementPeriod.end 2025-12-31 is before MP
+    [InlineData("diabetes-abatement-range-high", 1, 1, 0, 0, 0)] // abatementRange.high 56 a + birthDate = 2026-05-05, in MP
     [InlineData("diabetes-onset-on-period-end", 1, 1, 0, 0, 0)] // onset on periodEnd overlaps
     [InlineData("diabetes-onset-after-period", 0, 0, 0, 0, 0)] // onset after periodEnd
     [InlineData("diabetes-onset-partial-month", 1, 1, 0, 0, 0)] // onset uses the first day, 2026-12-01
@@ -46,6 +49,8 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("a1c-8-0", 1, 1, 0, 0, 0)] // 8.0 is not < 8
     [InlineData("a1c-7-99", 1, 1, 0, 0, 1)] // 7.99 < 8
     [InlineData("a1c-alternate-code", 1, 1, 0, 0, 1)] // 17856-6 listed
+    [InlineData("a1c-unit-text-not-used", 1, 1, 0, 0, 1)] // converted by Quantity.code (%), not the display unit
+    [InlineData("a1c-partial-month-ranks-first-day", 1, 1, 0, 0, 1)] // ranking uses a partial date's first day: 2026-09 ranks as 09-01, so 09-15 (7.0) is most recent
     [InlineData("a1c-ifcc-63", 1, 1, 0, 0, 1)] // 63 mmol/mol -> 7.915 % (spec check value, master equation)
     [InlineData("a1c-ifcc-64", 1, 1, 0, 0, 0)] // 64 mmol/mol -> 8.007 %, not < 8 (spec check value; never rounded)
     [InlineData("a1c-unconvertible-unit", 1, 1, 0, 0, 0)] // mg/dL cannot be converted to %: never qualifies, reported
