@@ -26,11 +26,12 @@ public sealed class CaseFixtureTests
         var bundle = MeasureHarness.LoadCase(Path.Combine(MeasureHarness.CasesDirectory, relativePath));
 
         Assert.Equal(Bundle.BundleType.Collection, bundle.Type);
-        Assert.Empty(bundle.Entry.SelectMany(e => BaseR4Validator.Shared.Errors(e.Resource).Select(error => $"{e.Resource.TypeName}/{e.Resource.Id}: {error}")));
-        var patients = bundle.Entry.Select(e => e.Resource).OfType<Patient>().ToList();
-        var patient = Assert.Single(patients);
+        Assert.All(bundle.Entry, e => Assert.NotNull(e.Resource));
+        var resources = bundle.Entry.Select(e => e.Resource).OfType<Resource>().ToList();
+        Assert.Empty(resources.SelectMany(r => BaseR4Validator.Shared.Errors(r).Select(error => $"{r.TypeName}/{r.Id}: {error}")));
+        var patient = Assert.Single(resources.OfType<Patient>());
         // Every other entry must be indexed for that patient, or the case would test less than it claims.
-        foreach (var resource in bundle.Entry.Select(e => e.Resource).Where(r => r is not Patient))
+        foreach (var resource in resources.Where(r => r is not Patient))
         {
             Assert.True(FactExtractor.TryExtract(resource, out var contribution), $"{resource.TypeName}/{resource.Id} is not indexed");
             Assert.Equal(patient.Id, contribution!.PatientId);

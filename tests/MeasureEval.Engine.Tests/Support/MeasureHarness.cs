@@ -8,7 +8,7 @@ namespace MeasureEval.Engine.Tests.Support;
 /// <summary>Population membership of one patient as 0/1 counts, so that a failure shows all five at once.</summary>
 public sealed record PopulationCounts(int InitialPopulation, int Denominator, int DenominatorExclusion, int DenominatorException, int Numerator);
 
-public sealed record CaseResult(PopulationCounts Populations, IReadOnlyList<DataQualityFinding> Findings);
+public sealed record CaseResult(PopulationCounts Populations, IReadOnlyList<DataQualityFinding> Findings, IReadOnlyList<CountDetail> Counts);
 
 /// <summary>
 /// Evaluates one measure for the single patient of a case fixture
@@ -20,29 +20,22 @@ public static class MeasureHarness
     public const string DefaultPeriodStart = "2026-01-01";
     public const string DefaultPeriodEnd = "2026-12-31";
 
-    private static readonly Lazy<(MeasureRepository Repository, IReadOnlyList<DefinitionIssue> Issues)> Loaded = new(() =>
-    {
-        var repository = MeasureRepository.Load(Path.Combine(SolutionDirectory(), "measures"), out var issues);
-        return (repository, issues);
-    });
-
-    private static readonly Lazy<MeasureEvaluator> Evaluator = new(() => new MeasureEvaluator(Loaded.Value.Repository));
-
     public static string CasesDirectory => Path.Combine(AppContext.BaseDirectory, "Cases");
 
     public static CaseResult Evaluate(string measureId, string caseFile, string periodStart = DefaultPeriodStart, string periodEnd = DefaultPeriodEnd)
     {
-        var (repository, issues) = Loaded.Value;
-        if (!repository.TryGetMeasure(measureId, out var measure) || measure is null)
+        var repository = RepositoryPaths.Repository;
+        if (!repository.TryGetMeasure(measureId, out var measure))
         {
-            Assert.Fail($"measure {measureId} is not loaded; definition issues: {string.Join("; ", issues.Select(i => $"{i.File} {i.Path}: {i.Message}"))}");
+            Assert.Fail($"measure {measureId} is not loaded; definition issues: {string.Join("; ", RepositoryPaths.RepositoryIssues.Select(i => $"{i.File} {i.Path}: {i.Message}"))}");
         }
 
         var bundle = LoadCase(Path.Combine(CasesDirectory, measureId, caseFile + ".json"));
-        var patient = Assert.Single(PatientFactsAssembler.Assemble(bundle.Entry.Select(e => e.Resource)));
+        var resources = bundle.Entry.Select(e => e.Resource).OfType<Resource>().ToList();
+        var patient = Assert.Single(PatientFactsAssembler.Assemble(resources));
         var period = new MeasurementPeriod(ParseDate(periodStart), ParseDate(periodEnd));
 
-        var result = Evaluator.Value.Evaluate(measure, patient, period);
+        var result = new MeasureEvaluator(repository, new BundleRecords(resources)).Evaluate(measure, patient, period);
 
         return new CaseResult(
             new PopulationCounts(
@@ -51,7 +44,8 @@ public static class MeasureHarness
                 Count(result.DenominatorExclusion),
                 Count(result.DenominatorException),
                 Count(result.Numerator)),
-            result.Findings);
+            result.Findings,
+            result.Counts);
     }
 
     /// <summary>Parses a fixture with the service's strict parser: an invalid fixture fails here, not silently later.</summary>
@@ -61,16 +55,10 @@ public static class MeasureHarness
 
     private static DateOnly ParseDate(string text) => DateOnly.ParseExact(text, "yyyy-MM-dd", CultureInfo.InvariantCulture);
 
-    private static string SolutionDirectory()
+    /// <summary>Serves the fixture's own resources to FHIRPath filters, as the store would.</summary>
+    private sealed class BundleRecords(IReadOnlyList<Resource> resources) : IRecordSource
     {
-        for (var dir = new DirectoryInfo(AppContext.BaseDirectory); dir is not null; dir = dir.Parent)
-        {
-            if (File.Exists(Path.Combine(dir.FullName, "MeasureEval.sln")))
-            {
-                return dir.FullName;
-            }
-        }
-
-        throw new InvalidOperationException($"no MeasureEval.sln above {AppContext.BaseDirectory}");
+        public Resource? Load(string resourceType, string id) =>
+            resources.FirstOrDefault(r => r.TypeName == resourceType && r.Id == id);
     }
 }
