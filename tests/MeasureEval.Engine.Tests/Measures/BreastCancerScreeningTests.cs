@@ -70,4 +70,17 @@ public sealed class BreastCancerScreeningTests
 
         Assert.Contains(result.Findings, f => f.Code == code && f.Resource == resource);
     }
+
+    // Stratifiers of every measure (shared semantics): age band at periodEnd, administrative gender, payer, primary-care panel;
+    // band codes written as in the definition format ("a-b", "a+", "<a").
+    [Theory]
+    [InlineData("age-42-on-period-end", "age-band", "42-49")] // 42
+    [InlineData("age-74-on-period-end", "age-band", "65-74")] // 74
+    [InlineData("mammogram-in-period", "age-band", "50-64")] // 56
+    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    {
+        var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
+
+        Assert.Equal(expected, result.Strata.GetValueOrDefault(stratifier));
+    }
 }

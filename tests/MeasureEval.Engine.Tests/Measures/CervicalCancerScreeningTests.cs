@@ -66,4 +66,17 @@ public sealed class CervicalCancerScreeningTests
 
         Assert.Contains(result.Findings, f => f.Code == code && f.Resource == resource);
     }
+
+    // Stratifiers of every measure (shared semantics): age band at periodEnd, administrative gender, payer, primary-care panel;
+    // band codes written as in the definition format ("a-b", "a+", "<a").
+    [Theory]
+    [InlineData("age-24-on-period-end", "age-band", "24-29")] // 24
+    [InlineData("age-64-on-period-end", "age-band", "50-64")] // 64
+    [InlineData("cytology-in-period", "age-band", "30-49")] // 46
+    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    {
+        var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
+
+        Assert.Equal(expected, result.Strata.GetValueOrDefault(stratifier));
+    }
 }

@@ -123,6 +123,21 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("palliative-condition-abated-before-period", 1, 1, 0, 0, 0)] // abated the day before MP: no overlap
     [InlineData("palliative-condition-abated-on-period-start", 1, 1, 1, 0, 0)] // abatement >= window start: overlaps
     [InlineData("palliative-condition-inactive-no-abatement", 1, 1, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)
+    // Stratifier cases: payer (a Coverage counts if active, beneficiary the patient, period overlapping MP - none: all of MP; several: active on periodEnd, then lowest order, then lowest id: our rule; Patient/RelatedPerson payor = self-pay; none = none) and primary-care panel (first generalPractitioner; none = unattributed)
+    [InlineData("age-49-band-edge", 1, 1, 0, 0, 0)] // 49 on periodEnd
+    [InlineData("age-50-band-edge", 1, 1, 0, 0, 0)] // 50 on periodEnd
+    [InlineData("age-64-band-edge", 1, 1, 0, 0, 0)] // 64 on periodEnd
+    [InlineData("age-65-band-edge", 1, 1, 0, 0, 0)] // 65 on periodEnd
+    [InlineData("payer-organization", 1, 1, 0, 0, 0)] // one active Coverage
+    [InlineData("payer-without-period", 1, 1, 0, 0, 0)] // no period: all of MP
+    [InlineData("payer-self-pay-patient", 1, 1, 0, 0, 0)] // payor is the Patient
+    [InlineData("payer-self-pay-related-person", 1, 1, 0, 0, 0)] // payor is a RelatedPerson
+    [InlineData("payer-cancelled", 1, 1, 0, 0, 0)] // status must be active
+    [InlineData("payer-period-before-period", 1, 1, 0, 0, 0)] // period does not overlap MP
+    [InlineData("payer-lowest-order", 1, 1, 0, 0, 0)] // both active on periodEnd: lowest order
+    [InlineData("payer-active-on-period-end-first", 1, 1, 0, 0, 0)] // the Coverage active on periodEnd wins over a lower order
+    [InlineData("payer-lowest-id", 1, 1, 0, 0, 0)] // same order: lowest id (cov-a)
+    [InlineData("panel-first-practitioner", 1, 1, 0, 0, 0)] // first generalPractitioner reference
     public void Evaluate_Case(string caseFile, int ip, int den, int dex, int dexcep, int numer, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
@@ -142,5 +157,36 @@ public sealed class ColorectalCancerScreeningTests
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
         Assert.Contains(result.Findings, f => f.Code == code && f.Resource == resource);
+    }
+
+    // Stratifiers of every measure (shared semantics): age band at periodEnd, administrative gender, payer, primary-care panel;
+    // band codes written as in the definition format ("a-b", "a+", "<a").
+    [Theory]
+    [InlineData("age-45-on-period-end", "age-band", "45-49")] // 45 on periodEnd
+    [InlineData("age-75-on-period-end", "age-band", "65-75")] // 75
+    [InlineData("gender-unknown", "gender", "unknown")] // administrative gender as stated
+    [InlineData("gender-female", "gender", "female")] // administrative gender as stated
+    [InlineData("fit-first-day-of-period", "payer", "none")] // no Coverage at all
+    [InlineData("fit-first-day-of-period", "panel", "unattributed")] // no generalPractitioner
+    [InlineData("fit-first-day-of-period", "gender", "male")] // as stated
+    [InlineData("age-49-band-edge", "age-band", "45-49")] // 49
+    [InlineData("age-50-band-edge", "age-band", "50-64")] // 50
+    [InlineData("age-64-band-edge", "age-band", "50-64")] // 64
+    [InlineData("age-65-band-edge", "age-band", "65-75")] // 65
+    [InlineData("payer-organization", "payer", "Organization/cedar-valley-health-plan")] // the payor reference
+    [InlineData("payer-without-period", "payer", "Organization/cedar-valley-health-plan")] // no period: all of MP
+    [InlineData("payer-self-pay-patient", "payer", "self-pay")] // payor is a Patient
+    [InlineData("payer-self-pay-related-person", "payer", "self-pay")] // payor is a RelatedPerson
+    [InlineData("payer-cancelled", "payer", "none")] // no Coverage counts
+    [InlineData("payer-period-before-period", "payer", "none")] // no Coverage counts
+    [InlineData("payer-lowest-order", "payer", "Organization/pinecrest-mutual")] // order 1
+    [InlineData("payer-active-on-period-end-first", "payer", "Organization/pinecrest-mutual")] // active on periodEnd
+    [InlineData("payer-lowest-id", "payer", "Organization/cedar-valley-health-plan")] // cov-a < cov-b
+    [InlineData("panel-first-practitioner", "panel", "Practitioner/dr-amara-osei")] // the first reference
+    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    {
+        var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
+
+        Assert.Equal(expected, result.Strata.GetValueOrDefault(stratifier));
     }
 }

@@ -77,6 +77,8 @@ public sealed class DepressionScreeningTests
     [InlineData("declined-with-negative-screening", 1, 1, 0, 0, 1)] // numerator met: exception not considered
     [InlineData("declined-with-positive-screening", 1, 1, 0, 0, 0)] // a screening counts in MP (positive, no follow-up): no exception
     [InlineData("declined-but-excluded", 1, 1, 1, 0, 0)] // excluded: exception not evaluated
+    [InlineData("age-17-at-start-18-at-end", 1, 1, 0, 0, 0)] // 17 on periodStart: in IP (>= 12)
+    [InlineData("age-65-on-period-end", 1, 1, 0, 0, 0)] // 65 on periodEnd
     public void Evaluate_Case(string caseFile, int ip, int den, int dex, int dexcep, int numer, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
@@ -93,5 +95,19 @@ public sealed class DepressionScreeningTests
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
         Assert.Contains(result.Findings, f => f.Code == code && f.Resource == resource);
+    }
+
+    // Stratifiers of every measure (shared semantics): age band at periodEnd, administrative gender, payer, primary-care panel;
+    // band codes written as in the definition format ("a-b", "a+", "<a").
+    [Theory]
+    [InlineData("age-12-on-period-start", "age-band", "12-17")] // 12 on periodEnd
+    [InlineData("phq9-negative", "age-band", "18-64")] // 56
+    [InlineData("age-17-at-start-18-at-end", "age-band", "18-64")] // age band at periodEnd (18), not periodStart (17)
+    [InlineData("age-65-on-period-end", "age-band", "65+")] // 65
+    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    {
+        var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
+
+        Assert.Equal(expected, result.Strata.GetValueOrDefault(stratifier));
     }
 }

@@ -93,4 +93,17 @@ public sealed class DiabetesA1cBelow8Tests
 
         Assert.Contains(result.Findings, f => f.Code == code && f.Resource == resource);
     }
+
+    // Stratifiers of every measure (shared semantics): age band at periodEnd, administrative gender, payer, primary-care panel;
+    // band codes written as in the definition format ("a-b", "a+", "<a").
+    [Theory]
+    [InlineData("age-18-on-period-end", "age-band", "18-44")] // 18
+    [InlineData("age-75-on-period-end", "age-band", "65-75")] // 75
+    [InlineData("a1c-7-9", "age-band", "45-64")] // 56
+    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    {
+        var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
+
+        Assert.Equal(expected, result.Strata.GetValueOrDefault(stratifier));
+    }
 }

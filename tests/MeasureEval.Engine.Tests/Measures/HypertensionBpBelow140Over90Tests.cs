@@ -91,4 +91,17 @@ public sealed class HypertensionBpBelow140Over90Tests
 
         Assert.Contains(result.Findings, f => f.Code == code && f.Resource == resource);
     }
+
+    // Stratifiers of every measure (shared semantics): age band at periodEnd, administrative gender, payer, primary-care panel;
+    // band codes written as in the definition format ("a-b", "a+", "<a").
+    [Theory]
+    [InlineData("age-18-on-period-end", "age-band", "18-44")] // 18
+    [InlineData("age-85-on-period-end", "age-band", "65-85")] // 85
+    [InlineData("panel-130-80", "age-band", "45-64")] // 56
+    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    {
+        var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
+
+        Assert.Equal(expected, result.Strata.GetValueOrDefault(stratifier));
+    }
 }

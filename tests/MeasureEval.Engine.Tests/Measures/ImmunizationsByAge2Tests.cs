@@ -65,6 +65,19 @@ public sealed class ImmunizationsByAge2Tests
         Assert.Contains(result.Findings, f => f.Code == code && f.Resource == resource);
     }
 
+    // Stratifiers of every measure (shared semantics): age band at periodEnd, administrative gender, payer, primary-care panel;
+    // band codes written as in the definition format ("a-b", "a+", "<a").
+    [Theory]
+    [InlineData("full-series", "gender", "female")] // other stratifiers apply
+    [InlineData("full-series", "payer", "none")] // no Coverage
+    [InlineData("full-series", "panel", "unattributed")] // no generalPractitioner
+    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    {
+        var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
+
+        Assert.Equal(expected, result.Strata.GetValueOrDefault(stratifier));
+    }
+
     // "The gap report lists, per antigen, doses counted and doses missing": (counted, required) per antigen,
     // required = DTaP 4, polio 3, MMR 1, Hib 3, HepB 3, varicella 1, PCV 4 (CDC child schedule, from memory: verify). Sorted, so antigen labels do not matter.
     [Theory]

@@ -51,6 +51,10 @@ public sealed class InfluenzaVaccinationTests
     // Exclusions: hospice/palliative; deceased during MP (our rule)
     [InlineData("hospice-discharge-with-vaccine", 1, 1, 1, 0, 0)] // excluded; numerator not evaluated
     [InlineData("died-during-period", 1, 1, 1, 0, 0)] // died during MP
+    [InlineData("age-17-on-period-end", 1, 1, 0, 0, 0)] // 17 on periodEnd
+    [InlineData("age-18-on-period-end", 1, 1, 0, 0, 0)] // 18 on periodEnd
+    [InlineData("age-64-on-period-end", 1, 1, 0, 0, 0)] // 64 on periodEnd
+    [InlineData("age-65-on-period-end", 1, 1, 0, 0, 0)] // 65 on periodEnd
     public void Evaluate_Case(string caseFile, int ip, int den, int dex, int dexcep, int numer, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
@@ -67,5 +71,20 @@ public sealed class InfluenzaVaccinationTests
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
         Assert.Contains(result.Findings, f => f.Code == code && f.Resource == resource);
+    }
+
+    // Stratifiers of every measure (shared semantics): age band at periodEnd, administrative gender, payer, primary-care panel;
+    // band codes written as in the definition format ("a-b", "a+", "<a").
+    [Theory]
+    [InlineData("age-6-months-on-period-start", "age-band", "<18")] // infant: under 18
+    [InlineData("age-17-on-period-end", "age-band", "<18")] // 17
+    [InlineData("age-18-on-period-end", "age-band", "18-64")] // 18
+    [InlineData("age-64-on-period-end", "age-band", "18-64")] // 64
+    [InlineData("age-65-on-period-end", "age-band", "65+")] // 65
+    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    {
+        var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
+
+        Assert.Equal(expected, result.Strata.GetValueOrDefault(stratifier));
     }
 }

@@ -8,7 +8,7 @@ namespace MeasureEval.Engine.Tests.Support;
 /// <summary>Population membership of one patient as 0/1 counts, so that a failure shows all five at once.</summary>
 public sealed record PopulationCounts(int InitialPopulation, int Denominator, int DenominatorExclusion, int DenominatorException, int Numerator);
 
-public sealed record CaseResult(PopulationCounts Populations, IReadOnlyList<DataQualityFinding> Findings, IReadOnlyList<CountDetail> Counts);
+public sealed record CaseResult(PopulationCounts Populations, IReadOnlyList<DataQualityFinding> Findings, IReadOnlyList<CountDetail> Counts, IReadOnlyDictionary<string, string> Strata);
 
 /// <summary>
 /// Evaluates one measure for the single patient of a case fixture
@@ -45,7 +45,8 @@ public static class MeasureHarness
                 Count(result.DenominatorException),
                 Count(result.Numerator)),
             result.Findings,
-            result.Counts);
+            result.Counts,
+            result.Strata);
     }
 
     /// <summary>Parses a fixture with the service's strict parser: an invalid fixture fails here, not silently later.</summary>
