@@ -563,7 +563,7 @@ internal sealed partial class DefinitionParser
             var parts = new List<Retrieve>();
             var ok = true;
             var i = 0;
-            var pooledValueIn = String(body, "valueIn", path, required: false);
+            var pooledValueIn = ValueIn(body, path);
             foreach (var item in anyOf.EnumerateArray())
             {
                 var part = Retrieve(item, $"{path}.anyOf[{i++}]", insideThen);
@@ -648,7 +648,7 @@ internal sealed partial class DefinitionParser
             }
         }
 
-        var valueIn = body.TryGetProperty("valueIn", out var vi) ? (vi.ValueKind == JsonValueKind.String ? vi.GetString() ?? "" : BadValueIn(path)) : null;
+        var valueIn = ValueIn(body, path);
         var where = new List<FhirPathFilter>();
         if (body.TryGetProperty("where", out var wh))
         {
@@ -719,10 +719,20 @@ internal sealed partial class DefinitionParser
         };
     }
 
-    private string BadValueIn(string path)
+    private string? ValueIn(JsonElement body, string path)
     {
-        Error($"{path}.valueIn", "must be a UCUM unit code (\"\" for a unitless score)");
-        return "";
+        if (!body.TryGetProperty("valueIn", out var value))
+        {
+            return null;
+        }
+
+        if (value.ValueKind != JsonValueKind.String)
+        {
+            Error($"{path}.valueIn", "must be a UCUM unit code (\"\" for a unitless score)");
+            return null;
+        }
+
+        return value.GetString();
     }
 
     private static Retrieve WithValueIn(Retrieve r, string valueIn) => new()

@@ -114,7 +114,7 @@ public sealed class MeasureEvaluator
         var mark = state.Mark();
         var result = criterion switch
         {
-            AllCriterion all => all.Items.All(c => Eval(c, state, scope)),
+            AllCriterion all => EvalAll(all, state, scope),
             AnyCriterion any => EvalAny(any, state, scope),
             NotCriterion not => EvalNot(not, state, scope),
             DefinitionCriterion d => EvalDefinition(d, state, scope),
@@ -136,6 +136,28 @@ public sealed class MeasureEvaluator
         }
 
         return result;
+    }
+
+    private bool EvalAll(AllCriterion all, EvaluationState state, Scope scope)
+    {
+        for (var i = 0; i < all.Items.Count; i++)
+        {
+            if (!Eval(all.Items[i], state, scope))
+            {
+                // The remaining counts still run: the gap report lists every antigen's doses, not just the first short one.
+                for (var j = i + 1; j < all.Items.Count; j++)
+                {
+                    if (all.Items[j] is CountCriterion count)
+                    {
+                        Eval(count, state, scope);
+                    }
+                }
+
+                return false;
+            }
+        }
+
+        return true;
     }
 
     private bool EvalAny(AnyCriterion any, EvaluationState state, Scope scope)
