@@ -73,7 +73,7 @@ public sealed class CervicalCancerScreeningTests
     [InlineData("age-24-on-period-end", "age-band", "24-29")] // 24
     [InlineData("age-64-on-period-end", "age-band", "50-64")] // 64
     [InlineData("cytology-in-period", "age-band", "30-49")] // 46
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

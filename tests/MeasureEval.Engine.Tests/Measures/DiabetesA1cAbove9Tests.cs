@@ -37,6 +37,7 @@ public sealed class DiabetesA1cAbove9Tests
     [InlineData("diabetes-onset-on-period-end", 1, 1, 0, 0, 1)] // onset on periodEnd overlaps
     [InlineData("diabetes-onset-after-period", 0, 0, 0, 0, 0)] // onset after periodEnd
     [InlineData("diabetes-onset-partial-month", 1, 1, 0, 0, 1)] // onset uses the first day, 2026-12-01
+    [InlineData("diabetes-without-onset", 0, 0, 0, 0, 0)] // no onset (and no recordedDate): no usable time, never qualifies, reported
     [InlineData("diabetes-clinical-status-absent", 1, 1, 0, 0, 1)] // absent clinicalStatus without abatement counts as ongoing
     [InlineData("diabetes-inactive-no-abatement", 0, 0, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)
     [InlineData("diabetes-resolved-no-abatement", 0, 0, 0, 0, 0)] // resolved without abatement does not count, reported
@@ -75,6 +76,7 @@ public sealed class DiabetesA1cAbove9Tests
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
+    [InlineData("diabetes-without-onset", FindingCodes.NoUsableTime, "Condition/cond-1")]
     [InlineData("diabetes-inactive-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("diabetes-resolved-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("a1c-unconvertible-unit", FindingCodes.UnconvertibleUnit, "Observation/obs-1")]

@@ -37,6 +37,7 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("diabetes-onset-on-period-end", 1, 1, 0, 0, 0)] // onset on periodEnd overlaps
     [InlineData("diabetes-onset-after-period", 0, 0, 0, 0, 0)] // onset after periodEnd
     [InlineData("diabetes-onset-partial-month", 1, 1, 0, 0, 0)] // onset uses the first day, 2026-12-01
+    [InlineData("diabetes-without-onset", 0, 0, 0, 0, 0)] // no onset (and no recordedDate): no usable time, never qualifies, reported
     [InlineData("diabetes-clinical-status-absent", 1, 1, 0, 0, 0)] // absent clinicalStatus without abatement counts as ongoing
     [InlineData("diabetes-inactive-no-abatement", 0, 0, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)
     [InlineData("diabetes-resolved-no-abatement", 0, 0, 0, 0, 0)] // resolved without abatement does not count, reported
@@ -59,6 +60,8 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("a1c-comparator-at-most-8", 1, 1, 0, 0, 0)] // <=8.0 % allows 8.0
     [InlineData("a1c-comparator-above-7", 1, 1, 0, 0, 0)] // >7.0 % allows 9
     [InlineData("a1c-none", 1, 1, 0, 0, 0)] // no result: not in the numerator
+    [InlineData("a1c-partial-month-in-period", 1, 1, 0, 0, 1)] // 2026-12 lies wholly inside MP
+    [InlineData("a1c-amended", 1, 1, 0, 0, 1)] // amended counts
     [InlineData("a1c-before-period", 1, 1, 0, 0, 0)] // the result must be in MP
     [InlineData("a1c-most-recent-high", 1, 1, 0, 0, 0)] // most recent (8.5) decides
     [InlineData("a1c-most-recent-low", 1, 1, 0, 0, 1)] // most recent (7.0) decides
@@ -83,6 +86,7 @@ public sealed class DiabetesA1cBelow8Tests
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
+    [InlineData("diabetes-without-onset", FindingCodes.NoUsableTime, "Condition/cond-1")]
     [InlineData("diabetes-inactive-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("diabetes-resolved-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("a1c-unconvertible-unit", FindingCodes.UnconvertibleUnit, "Observation/obs-1")]
@@ -100,7 +104,7 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("age-18-on-period-end", "age-band", "18-44")] // 18
     [InlineData("age-75-on-period-end", "age-band", "65-75")] // 75
     [InlineData("a1c-7-9", "age-band", "45-64")] // 56
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

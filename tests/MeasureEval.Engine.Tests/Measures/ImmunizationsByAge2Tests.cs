@@ -36,6 +36,7 @@ public sealed class ImmunizationsByAge2Tests
     [InlineData("dtap-fourth-on-second-birthday", 1, 1, 0, 0, 1)] // dose on the 2nd birthday counts (between day 42 and the 2nd birthday, inclusive)
     [InlineData("dtap-fourth-after-second-birthday", 1, 1, 0, 0, 0)] // the day after the 2nd birthday: not counted
     [InlineData("dtap-fourth-stated-date-on-birthday", 1, 1, 0, 0, 1)] // stated date 2026-03-01 (UTC 2026-03-02)
+    [InlineData("dtap-same-stated-date-different-utc-date", 1, 1, 0, 0, 0)] // a DTaP at 2024-09-01T00:30+14:00 shares the stated date of the 2024-09-01 dose (UTC 2024-08-31): counted once, DTaP 3
     [InlineData("dtap-fourth-subpotent", 1, 1, 0, 0, 0)] // subpotent dose not counted
     [InlineData("dtap-fourth-not-done", 1, 1, 0, 0, 0)] // not-done dose not counted
     [InlineData("dtap-fourth-entered-in-error", 1, 1, 0, 0, 0)] // entered-in-error never counts
@@ -68,10 +69,11 @@ public sealed class ImmunizationsByAge2Tests
     // Stratifiers of every measure (shared semantics): age band at periodEnd, administrative gender, payer, primary-care panel;
     // band codes written as in the definition format ("a-b", "a+", "<a").
     [Theory]
+    [InlineData("full-series", "age-band", null)] // age bands: none
     [InlineData("full-series", "gender", "female")] // other stratifiers apply
     [InlineData("full-series", "payer", "none")] // no Coverage
     [InlineData("full-series", "panel", "unattributed")] // no generalPractitioner
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

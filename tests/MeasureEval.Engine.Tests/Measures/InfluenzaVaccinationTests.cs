@@ -81,7 +81,7 @@ public sealed class InfluenzaVaccinationTests
     [InlineData("age-18-on-period-end", "age-band", "18-64")] // 18
     [InlineData("age-64-on-period-end", "age-band", "18-64")] // 64
     [InlineData("age-65-on-period-end", "age-band", "65+")] // 65
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
