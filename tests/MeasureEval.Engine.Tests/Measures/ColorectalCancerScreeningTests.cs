@@ -129,6 +129,14 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("palliative-condition-abated-before-period", 1, 1, 0, 0, 0)] // abated the day before MP: no overlap
     [InlineData("palliative-condition-abated-on-period-start", 1, 1, 1, 0, 0)] // abatement >= window start: overlaps
     [InlineData("palliative-condition-inactive-no-abatement", 1, 1, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)
+    // Every listed code, one case each (value sets as the spec lists them)
+    [InlineData("fobt-code-57905-2", 1, 1, 0, 0, 1)] // FOBT LOINC 57905-2 listed
+    [InlineData("fobt-code-56490-6", 1, 1, 0, 0, 1)] // FOBT LOINC 56490-6 listed
+    [InlineData("fobt-code-56491-4", 1, 1, 0, 0, 1)] // FOBT LOINC 56491-4 listed
+    [InlineData("fobt-code-14563-1", 1, 1, 0, 0, 1)] // FOBT LOINC 14563-1 listed
+    [InlineData("fobt-code-14564-9", 1, 1, 0, 0, 1)] // FOBT LOINC 14564-9 listed
+    [InlineData("fobt-code-14565-6", 1, 1, 0, 0, 1)] // FOBT LOINC 14565-6 listed
+    [InlineData("cancer-snomed-rectosigmoid", 1, 1, 1, 0, 0)] // SNOMED CT 363414004
     // Stratifier cases: payer (a Coverage counts if active, beneficiary the patient, period overlapping MP - none: all of MP; several: active on periodEnd, then lowest order, then lowest id: our rule; Patient/RelatedPerson payor = self-pay; none = none) and primary-care panel (first generalPractitioner; none = unattributed)
     [InlineData("age-49-band-edge", 1, 1, 0, 0, 0)] // 49 on periodEnd
     [InlineData("age-50-band-edge", 1, 1, 0, 0, 0)] // 50 on periodEnd

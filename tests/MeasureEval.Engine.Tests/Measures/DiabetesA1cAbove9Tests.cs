@@ -23,6 +23,8 @@ public sealed class DiabetesA1cAbove9Tests
     [InlineData("diabetes-e11-parent-code", 1, 1, 0, 0, 1)] // E11.* includes E11
     [InlineData("diabetes-e11-65", 1, 1, 0, 0, 1)] // E11.* includes E11.65
     [InlineData("diabetes-snomed", 1, 1, 0, 0, 1)] // SNOMED CT 44054006
+    [InlineData("diabetes-snomed-type-1", 1, 1, 0, 0, 1)] // SNOMED CT 46635009
+    [InlineData("diabetes-snomed-type-2", 1, 1, 0, 0, 1)] // SNOMED CT 73211009
     [InlineData("diabetes-gestational-o24", 0, 0, 0, 0, 0)] // no O24.* code qualifies
     [InlineData("no-diabetes", 0, 0, 0, 0, 0)] // no diabetes
     [InlineData("diabetes-abated-before-period", 0, 0, 0, 0, 0)] // abatement before periodStart: no overlap

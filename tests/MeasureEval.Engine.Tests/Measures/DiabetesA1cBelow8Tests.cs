@@ -23,6 +23,8 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("diabetes-e11-parent-code", 1, 1, 0, 0, 0)] // E11.* includes E11
     [InlineData("diabetes-e11-65", 1, 1, 0, 0, 0)] // E11.* includes E11.65
     [InlineData("diabetes-snomed", 1, 1, 0, 0, 0)] // SNOMED CT 44054006
+    [InlineData("diabetes-snomed-type-1", 1, 1, 0, 0, 0)] // SNOMED CT 46635009
+    [InlineData("diabetes-snomed-type-2", 1, 1, 0, 0, 0)] // SNOMED CT 73211009
     [InlineData("diabetes-gestational-o24", 0, 0, 0, 0, 0)] // no O24.* code qualifies
     [InlineData("no-diabetes", 0, 0, 0, 0, 0)] // no diabetes
     [InlineData("diabetes-abated-before-period", 0, 0, 0, 0, 0)] // abatement before periodStart: no overlap
@@ -50,6 +52,8 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("a1c-8-0", 1, 1, 0, 0, 0)] // 8.0 is not < 8
     [InlineData("a1c-7-99", 1, 1, 0, 0, 1)] // 7.99 < 8
     [InlineData("a1c-alternate-code", 1, 1, 0, 0, 1)] // 17856-6 listed
+    [InlineData("a1c-code-4549-2", 1, 1, 0, 0, 1)] // 4549-2 listed
+    [InlineData("a1c-code-17855-8", 1, 1, 0, 0, 1)] // 17855-8 listed
     [InlineData("a1c-unit-text-not-used", 1, 1, 0, 0, 1)] // converted by Quantity.code (%), not the display unit
     [InlineData("a1c-partial-month-ranks-first-day", 1, 1, 0, 0, 1)] // ranking uses a partial date's first day: 2026-09 ranks as 09-01, so 09-15 (7.0) is most recent
     [InlineData("a1c-ifcc-63", 1, 1, 0, 0, 1)] // 63 mmol/mol -> 7.915 % (spec check value, master equation)
