@@ -64,7 +64,7 @@ public sealed class BreastCancerScreeningTests
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
     [InlineData("mammogram-performed-string", FindingCodes.NoUsableTime, "Procedure/proc-1")]
-    public void Evaluate_DataQualityCase(string caseFile, string code, string resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_DataQualityCase(string caseFile, string code, string? resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

@@ -162,13 +162,13 @@ public sealed class ColorectalCancerScreeningTests
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
-    [InlineData("birthdate-missing", FindingCodes.MissingBirthDate, "Patient/patient")]
+    [InlineData("birthdate-missing", FindingCodes.MissingBirthDate, null)]
     [InlineData("encounter-without-start", FindingCodes.NoUsableTime, "Encounter/enc-1")]
     [InlineData("colonoscopy-performed-string", FindingCodes.NoUsableTime, "Procedure/proc-1")]
     [InlineData("fit-issued-only", FindingCodes.NoUsableTime, "Observation/obs-1")]
     [InlineData("fit-effective-timing", FindingCodes.NoUsableTime, "Observation/obs-1")]
     [InlineData("palliative-condition-inactive-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
-    public void Evaluate_DataQualityCase(string caseFile, string code, string resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_DataQualityCase(string caseFile, string code, string? resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

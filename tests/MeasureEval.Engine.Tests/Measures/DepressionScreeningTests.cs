@@ -90,9 +90,9 @@ public sealed class DepressionScreeningTests
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
-    [InlineData("birthdate-partial-year-uncertain", FindingCodes.PartialBirthDate, "Patient/patient")]
+    [InlineData("birthdate-partial-year-uncertain", FindingCodes.PartialBirthDate, null)]
     [InlineData("screening-issued-only", FindingCodes.NoUsableTime, "Observation/obs-1")]
-    public void Evaluate_DataQualityCase(string caseFile, string code, string resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_DataQualityCase(string caseFile, string code, string? resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

@@ -82,7 +82,7 @@ public sealed class DiabetesA1cAbove9Tests
     [InlineData("diabetes-inactive-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("diabetes-resolved-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("a1c-unconvertible-unit", FindingCodes.UnconvertibleUnit, "Observation/obs-1")]
-    public void Evaluate_DataQualityCase(string caseFile, string code, string resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_DataQualityCase(string caseFile, string code, string? resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

@@ -93,7 +93,7 @@ public sealed class HypertensionBpBelow140Over90Tests
     [InlineData("hypertension-inactive-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("panel-issued-only", FindingCodes.NoUsableTime, "Observation/obs-1")]
     [InlineData("diastolic-unconvertible-unit", FindingCodes.UnconvertibleUnit, "Observation/obs-2")]
-    public void Evaluate_DataQualityCase(string caseFile, string code, string resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_DataQualityCase(string caseFile, string code, string? resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

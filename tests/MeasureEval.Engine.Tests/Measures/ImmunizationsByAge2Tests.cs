@@ -89,9 +89,9 @@ public sealed class ImmunizationsByAge2Tests
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
-    [InlineData("birthdate-missing", FindingCodes.MissingBirthDate, "Patient/patient")]
+    [InlineData("birthdate-missing", FindingCodes.MissingBirthDate, null)]
     [InlineData("dtap-fourth-occurrence-string", FindingCodes.NoUsableTime, "Immunization/imm-14")]
-    public void Evaluate_DataQualityCase(string caseFile, string code, string resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_DataQualityCase(string caseFile, string code, string? resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

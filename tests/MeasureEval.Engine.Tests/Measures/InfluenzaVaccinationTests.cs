@@ -92,9 +92,9 @@ public sealed class InfluenzaVaccinationTests
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
-    [InlineData("birthdate-partial-month-uncertain", FindingCodes.PartialBirthDate, "Patient/patient")]
+    [InlineData("birthdate-partial-month-uncertain", FindingCodes.PartialBirthDate, null)]
     [InlineData("vaccine-occurrence-string", FindingCodes.NoUsableTime, "Immunization/imm-1")]
-    public void Evaluate_DataQualityCase(string caseFile, string code, string resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_DataQualityCase(string caseFile, string code, string? resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
