@@ -15,6 +15,9 @@ public static class ReportJson
         WriteIndented = true,
     };
 
+    /// <summary>The same conventions on one line (a row of a streamed list).</summary>
+    public static JsonSerializerOptions Compact { get; } = new(Options) { WriteIndented = false };
+
     public static string Serialize(MeasureReportData report) => JsonSerializer.Serialize(report, Options);
 
     public static string Serialize(IReadOnlyList<MeasureSummary> summaries) => JsonSerializer.Serialize(summaries, Options);
