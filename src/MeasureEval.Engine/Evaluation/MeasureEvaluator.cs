@@ -54,11 +54,11 @@ public sealed class MeasureEvaluator
         var definitions = new Dictionary<PopulationKind, IReadOnlyList<string>>();
         if (patient.Demographics is null)
         {
-            state.Find(FindingCodes.MissingPatient, "only records that point at the patient are stored, not the Patient resource", patient.Reference);
+            state.Find(FindingCodes.MissingPatient, "only records that point at the patient are stored, not the Patient resource", null);
         }
         else if (patient.BirthFirst is null)
         {
-            state.Find(FindingCodes.MissingBirthDate, "the patient has no usable birthDate and is in no initial population", patient.Reference);
+            state.Find(FindingCodes.MissingBirthDate, "the patient has no usable birthDate and is in no initial population", null);
         }
 
         bool Population(PopulationKind kind, bool fallback)
@@ -267,7 +267,7 @@ public sealed class MeasureEvaluator
         var result = Holds(first);
         if (patient.BirthPartial && Holds(patient.BirthLast!.Value) != result)
         {
-            state.Find(FindingCodes.PartialBirthDate, $"the partial birthDate '{patient.Demographics?.BirthDate}' was taken at its first day; the age test on {on:yyyy-MM-dd} depends on the exact day", patient.Reference);
+            state.Find(FindingCodes.PartialBirthDate, $"the partial birthDate '{patient.Demographics?.BirthDate}' was taken at its first day; the age test on {on:yyyy-MM-dd} depends on the exact day", null);
         }
 
         return Demographic(state, result);
@@ -292,7 +292,7 @@ public sealed class MeasureEvaluator
         var result = Holds(first);
         if (patient.BirthPartial && Holds(patient.BirthLast!.Value) != result)
         {
-            state.Find(FindingCodes.PartialBirthDate, $"the partial birthDate '{patient.Demographics?.BirthDate}' was taken at its first day; the birthday test depends on the exact day", patient.Reference);
+            state.Find(FindingCodes.PartialBirthDate, $"the partial birthDate '{patient.Demographics?.BirthDate}' was taken at its first day; the birthday test depends on the exact day", null);
         }
 
         return Demographic(state, result);
@@ -545,7 +545,7 @@ public sealed class MeasureEvaluator
                 continue;
             }
 
-            if (!TimeMatches(retrieve, record, from, to, state))
+            if (!TimeMatches(retrieve, record, from, to, state, scope))
             {
                 continue;
             }
@@ -641,12 +641,12 @@ public sealed class MeasureEvaluator
     private static bool ReasonMatches(Retrieve retrieve, ClinicalFact fact) =>
         retrieve.StatusReason is null || fact.StatusReason.Any(c => c.System == CodeSystems.ActReason && c.Code is not null && retrieve.StatusReason.Contains(c.Code));
 
-    private static bool TimeMatches(Retrieve retrieve, PreparedRecord record, DateOnly? from, DateOnly? to, EvaluationState state)
+    private static bool TimeMatches(Retrieve retrieve, PreparedRecord record, DateOnly? from, DateOnly? to, EvaluationState state, Scope scope)
     {
         var fact = record.Fact;
         if (fact.ResourceType == "Condition")
         {
-            return ConditionMatches(retrieve, record, from, to, state);
+            return ConditionMatches(retrieve, record, from, to, state, scope);
         }
 
         if (record.Point is not { } point)
@@ -679,20 +679,24 @@ public sealed class MeasureEvaluator
         }
     }
 
-    private static bool ConditionMatches(Retrieve retrieve, PreparedRecord record, DateOnly? from, DateOnly? to, EvaluationState state)
+    private static bool ConditionMatches(Retrieve retrieve, PreparedRecord record, DateOnly? from, DateOnly? to, EvaluationState state, Scope scope)
     {
         if (retrieve.Timing is Timing.OnsetOnOrBefore or Timing.OnsetBefore)
         {
-            // History rules need only the onset; recordedDate stands in for a missing one.
-            if ((record.OnsetFirst ?? record.RecordedFirst) is not { } first)
+            // History rules need only the onset; recordedDate stands in for a missing one in on-or-before tests only.
+            var first = retrieve.Timing == Timing.OnsetOnOrBefore ? record.OnsetFirst ?? record.RecordedFirst : record.OnsetFirst;
+            if (first is null)
             {
-                state.Find(FindingCodes.NoUsableTime, "a Condition with neither onset nor recordedDate never qualifies", record.Reference);
+                state.Find(FindingCodes.NoUsableTime, retrieve.Timing == Timing.OnsetOnOrBefore
+                    ? "a Condition with neither onset nor recordedDate never qualifies"
+                    : "a Condition without a usable onset never qualifies for an onset-before test", record.Reference);
                 return false;
             }
 
-            return retrieve.Timing == Timing.OnsetBefore
+            var onsetHolds = retrieve.Timing == Timing.OnsetBefore
                 ? from is null || first < from
                 : (to is null || first <= to) && (from is null || first >= from);
+            return onsetHolds && (retrieve.NotAbatedBefore is null || NotAbatedBefore(retrieve, record, state, scope));
         }
 
         if (record.OnsetFirst is not { } onset)
@@ -727,6 +731,33 @@ public sealed class MeasureEvaluator
             Timing.In => (from is null || onset >= from) && (to is null || end <= to),
             _ => (to is null || onset <= to) && (from is null || end >= from),
         };
+    }
+
+    private static bool NotAbatedBefore(Retrieve retrieve, PreparedRecord record, EvaluationState state, Scope scope)
+    {
+        if (Resolve(retrieve.NotAbatedBefore, state, scope) is not { } date)
+        {
+            return false;
+        }
+
+        if (record.AbatementPresent)
+        {
+            if (record.AbatementLast is not { } abated)
+            {
+                state.Find(FindingCodes.ConditionUndatedAbatement, "a Condition with an abatement that carries no date never counts as ongoing", record.Reference);
+                return false;
+            }
+
+            return abated >= date;
+        }
+
+        if (retrieve.IgnoreClinicalStatus || IsOngoing(record.Fact))
+        {
+            return true;
+        }
+
+        state.Find(FindingCodes.ConditionNoEndDate, "a Condition inactive, in remission or resolved without an abatement date does not count", record.Reference);
+        return false;
     }
 
     private static bool IsOngoing(ClinicalFact fact)
