@@ -151,6 +151,79 @@ internal sealed class SqlStoreSession : IStoreSession
         }
     }
 
+    /// <summary>Rebuilds the index unless it is already in the codec's format; true when it rebuilt.</summary>
+    internal async System.Threading.Tasks.Task<bool> EnsureIndexFormatAsync(CancellationToken cancellationToken)
+    {
+        EnsureOpen();
+        if (await IndexFormatAsync(cancellationToken).ConfigureAwait(false) == PatientFactsCodec.Format)
+        {
+            return false;
+        }
+
+        await LockForRebuildAsync(cancellationToken).ConfigureAwait(false);
+
+        // Another process may have rebuilt it while this one waited for the lock.
+        if (await IndexFormatAsync(cancellationToken).ConfigureAwait(false) == PatientFactsCodec.Format)
+        {
+            return false;
+        }
+
+        await RebuildCoreAsync(cancellationToken).ConfigureAwait(false);
+        return true;
+    }
+
+    internal async System.Threading.Tasks.Task RebuildIndexAsync(CancellationToken cancellationToken)
+    {
+        EnsureOpen();
+        await LockForRebuildAsync(cancellationToken).ConfigureAwait(false);
+        await RebuildCoreAsync(cancellationToken).ConfigureAwait(false);
+    }
+
+    private async System.Threading.Tasks.Task RebuildCoreAsync(CancellationToken cancellationToken)
+    {
+        await FlushIndexAsync(cancellationToken).ConfigureAwait(false);
+        await RunAsync([("DELETE FROM patient_index", [])], cancellationToken).ConfigureAwait(false);
+
+        // Read on a second connection: this one is busy writing. It sees the committed resources, which the lock keeps
+        // from changing until this transaction ends.
+        var types = FactExtractor.IndexedTypes.Order(StringComparer.Ordinal).ToArray<object?>();
+        await using (var reader = await _store.OpenReaderAsync(cancellationToken).ConfigureAwait(false))
+        await using (var select = SqlResourceStore.Command(reader, null, StoreSql.CurrentIndexedResources(types.Length), types))
+        await using (var rows = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false))
+        {
+            while (await rows.ReadAsync(cancellationToken).ConfigureAwait(false))
+            {
+                var (type, id) = (rows.GetString(0), rows.GetString(1));
+                var contribution = FactExtractor.TryExtract(FhirJson.Parse<Resource>(rows.GetString(2)), out var extracted) ? extracted : null;
+                await RunAsync([(StoreSql.SetIndexPatient, [type, id, contribution?.PatientId])], cancellationToken).ConfigureAwait(false);
+                if (contribution is not null)
+                {
+                    (await EntryAsync(contribution.PatientId, cancellationToken).ConfigureAwait(false)).Add(contribution);
+                }
+            }
+        }
+
+        await FlushIndexAsync(cancellationToken).ConfigureAwait(false);
+        await RunAsync(
+            [("DELETE FROM index_state", []), ("INSERT INTO index_state (format) VALUES (@p0)", [(int)PatientFactsCodec.Format])],
+            cancellationToken).ConfigureAwait(false);
+    }
+
+    private async System.Threading.Tasks.Task<int?> IndexFormatAsync(CancellationToken cancellationToken) =>
+        await QueryAsync<int?>(
+            StoreSql.ReadIndexFormat,
+            [],
+            async (reader, ct) => await reader.ReadAsync(ct).ConfigureAwait(false) && !reader.IsDBNull(0) ? reader.GetInt32(0) : null,
+            cancellationToken).ConfigureAwait(false);
+
+    private async System.Threading.Tasks.Task LockForRebuildAsync(CancellationToken cancellationToken)
+    {
+        if (_store.LockForRebuildSql is { } lockSql)
+        {
+            await QueryAsync(lockSql, [], (_, _) => System.Threading.Tasks.Task.FromResult(true), cancellationToken).ConfigureAwait(false);
+        }
+    }
+
     private async System.Threading.Tasks.Task<StoredResource> WriteAsync(
         Resource resource, string id, int version, string? previousIndexPatient, CancellationToken cancellationToken)
     {
