@@ -112,7 +112,7 @@ public static class FactExtractor
             Time = TimeOf(o.Effective),
             DataAbsentReason = Codings(o.DataAbsentReason),
             HasValue = o.Value is not null,
-            Quantity = QuantityOf(o.Value as Quantity),
+            Quantity = QuantityOf(o.Value as Quantity) ?? IntegerQuantity(o.Value as Integer),
             ValueCodes = Codings(o.Value as CodeableConcept),
             Components = [.. o.Component.Select(c => new FactComponent
             {
@@ -213,6 +213,10 @@ public static class FactExtractor
 
     private static FactQuantity? QuantityOf(Quantity? q) =>
         q is null ? null : new FactQuantity(q.Value, LiteralOf(q.ComparatorElement), q.Unit, q.System, q.Code);
+
+    /// <summary>valueInteger (questionnaire scores such as a PHQ-9 total) as a unitless quantity.</summary>
+    private static FactQuantity? IntegerQuantity(Integer? i) =>
+        i?.Value is { } value ? new FactQuantity(value, null, null, null, null) : null;
 
     private static FactTime? TimeOf(DataType? value) => value switch
     {

@@ -1,0 +1,122 @@
+namespace MeasureEval.Engine;
+
+/// <summary>Counts of the five populations.</summary>
+public sealed class PopulationTally
+{
+    private readonly int[] _counts = new int[PopulationKinds.All.Count];
+
+    public int this[PopulationKind population] => _counts[(int)population];
+
+    public int InitialPopulation => this[PopulationKind.InitialPopulation];
+
+    public int Denominator => this[PopulationKind.Denominator];
+
+    public int DenominatorExclusion => this[PopulationKind.DenominatorExclusion];
+
+    public int DenominatorException => this[PopulationKind.DenominatorException];
+
+    public int Numerator => this[PopulationKind.Numerator];
+
+    /// <summary>denominator − exclusions − exceptions: the n of the rate.</summary>
+    public int RateDenominator => Denominator - DenominatorExclusion - DenominatorException;
+
+    /// <summary>numerator / (denominator − exclusions − exceptions); null when that is 0.</summary>
+    public double? Score => RateDenominator > 0 ? (double)Numerator / RateDenominator : null;
+
+    public RateInterval? Interval => Statistics.Wilson(Numerator, RateDenominator);
+
+    public void Add(PatientResult result)
+    {
+        foreach (var population in PopulationKinds.All)
+        {
+            if (result.Is(population))
+            {
+                _counts[(int)population]++;
+            }
+        }
+    }
+}
+
+/// <summary>
+/// One measure's aggregate over a population: counts, strata counts and, only when asked, the patient ids per population.
+/// Memory grows with the number of strata, not with the number of patients (unless subjects are kept).
+/// </summary>
+public sealed class PopulationSummary
+{
+    private readonly Dictionary<string, SortedDictionary<string, PopulationTally>> _strata = new(StringComparer.Ordinal);
+    private readonly Dictionary<PopulationKind, List<string>>? _subjects;
+    private readonly SortedDictionary<string, int> _findings = new(StringComparer.Ordinal);
+
+    public PopulationSummary(MeasureDefinition measure, MeasurementPeriod period, bool keepSubjects)
+    {
+        Measure = measure;
+        Period = period;
+        foreach (var stratifier in measure.Stratifiers)
+        {
+            _strata[stratifier.Id] = new SortedDictionary<string, PopulationTally>(StringComparer.Ordinal);
+        }
+
+        if (keepSubjects)
+        {
+            _subjects = PopulationKinds.All.ToDictionary(p => p, _ => new List<string>());
+        }
+    }
+
+    public MeasureDefinition Measure { get; }
+
+    public MeasurementPeriod Period { get; }
+
+    public PopulationTally Counts { get; } = new();
+
+    /// <summary>Patients evaluated (in the initial population or not).</summary>
+    public int PatientsEvaluated { get; private set; }
+
+    /// <summary>Stratifier id → stratum code → counts, strata in ordinal order.</summary>
+    public IReadOnlyDictionary<string, SortedDictionary<string, PopulationTally>> Strata => _strata;
+
+    /// <summary>Patient ids per population, in evaluation order; null unless subjects were kept.</summary>
+    public IReadOnlyDictionary<PopulationKind, List<string>>? Subjects => _subjects;
+
+    /// <summary>Data-quality finding code → number of findings.</summary>
+    public IReadOnlyDictionary<string, int> FindingCounts => _findings;
+
+    public void Add(PatientResult result)
+    {
+        PatientsEvaluated++;
+        foreach (var finding in result.Findings)
+        {
+            _findings[finding.Code] = _findings.GetValueOrDefault(finding.Code) + 1;
+        }
+
+        if (!result.InitialPopulation)
+        {
+            return;
+        }
+
+        Counts.Add(result);
+        foreach (var (stratifier, code) in result.Strata)
+        {
+            if (_strata.TryGetValue(stratifier, out var strata))
+            {
+                if (!strata.TryGetValue(code, out var counts))
+                {
+                    counts = new PopulationTally();
+                    strata[code] = counts;
+                }
+
+                counts.Add(result);
+            }
+        }
+
+        if (_subjects is not null)
+        {
+            foreach (var population in PopulationKinds.All)
+            {
+                if (result.Is(population))
+                {
+                    _subjects[population].Add(result.PatientId);
+                }
+            }
+        }
+    }
+}
