@@ -76,7 +76,7 @@ public sealed record WriteResult(StoredResource? Stored, bool Created, bool Vers
 
 /// <summary>
 /// A search on one type. Each non-null criterion must hold (AND); values inside one list are alternatives (OR),
-/// except <see cref="LastUpdated"/> whose ranges must all hold.
+/// except <see cref="LastUpdated"/> and <see cref="LastUpdatedNotIn"/> whose ranges must all hold.
 /// </summary>
 public sealed record SearchQuery(string ResourceType)
 {
@@ -84,6 +84,9 @@ public sealed record SearchQuery(string ResourceType)
 
     /// <summary>Half-open instant ranges [From, Until) that lastUpdated must fall in; a null bound is open.</summary>
     public IReadOnlyList<InstantRange>? LastUpdated { get; init; }
+
+    /// <summary>Half-open instant ranges [From, Until) that lastUpdated must each fall outside (a <c>ne</c> prefix).</summary>
+    public IReadOnlyList<InstantRange>? LastUpdatedNotIn { get; init; }
 
     /// <summary>The patient the resource belongs to (patient/subject/beneficiary search, or the Patient itself).</summary>
     public string? PatientId { get; init; }

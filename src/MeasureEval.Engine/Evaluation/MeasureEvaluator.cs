@@ -109,7 +109,7 @@ public sealed class MeasureEvaluator
         };
     }
 
-    private bool Eval(Criterion criterion, EvaluationState state, Scope scope)
+    internal bool Eval(Criterion criterion, EvaluationState state, Scope scope)
     {
         var mark = state.Mark();
         var result = criterion switch
@@ -197,7 +197,7 @@ public sealed class MeasureEvaluator
         {
             if (!state.Cache.TryGet(definition, out var cached))
             {
-                var inner = new EvaluationState(state.Patient, state.Period, state.Measure, state.Cache, state.Records);
+                var inner = new EvaluationState(state.Patient, state.Period, state.Measure, state.Cache, state.Records) { Chosen = state.Chosen, OpenWindowStart = state.OpenWindowStart };
                 var value = Eval(definition.Body, inner, scope);
                 cached = new DefinitionCache.Entry(value, [.. inner.Evidence], [.. inner.Definitions], [.. inner.Findings], [.. inner.Counts]);
                 state.Cache.Add(definition, cached);
@@ -224,7 +224,7 @@ public sealed class MeasureEvaluator
         return result;
     }
 
-    private static DateOnly? Resolve(DateExpression? expression, EvaluationState state, Scope scope)
+    internal static DateOnly? Resolve(DateExpression? expression, EvaluationState state, Scope scope)
     {
         if (expression is null)
         {
@@ -387,6 +387,7 @@ public sealed class MeasureEvaluator
         }
 
         state.Evidence.Add(best.Record.Reference);
+        state.Chosen?.Add((mostRecent, new Scope(best, null)));
         return mostRecent.Then is null || Eval(mostRecent.Then, state, new Scope(best, null));
     }
 
@@ -464,6 +465,7 @@ public sealed class MeasureEvaluator
             state.Evidence.Add(perValue[i][latest].Record.Reference);
         }
 
+        state.Chosen?.Add((sameDay, new Scope(scope.Record, named)));
         return sameDay.Then is null || Eval(sameDay.Then, state, new Scope(scope.Record, named));
     }
 
@@ -525,9 +527,9 @@ public sealed class MeasureEvaluator
             yield break;
         }
 
-        var from = Resolve(retrieve.Window?.From, state, scope);
+        var from = state.OpenWindowStart ? null : Resolve(retrieve.Window?.From, state, scope);
         var to = Resolve(retrieve.Window?.To, state, scope);
-        if ((retrieve.Window?.From is not null && from is null) || (retrieve.Window?.To is not null && to is null))
+        if ((!state.OpenWindowStart && retrieve.Window?.From is not null && from is null) || (retrieve.Window?.To is not null && to is null))
         {
             yield break;
         }

@@ -1,0 +1,3 @@
+using MeasureEval.Cli;
+
+return await CliApplication.Build().Parse(args).InvokeAsync();

@@ -1,0 +1,52 @@
+using System.Diagnostics;
+
+namespace MeasureEval.Cli;
+
+/// <summary>A progress line on stderr for long runs, rewritten at most twice a second; counts only, never patient data.</summary>
+internal sealed class ProgressLine(TextWriter writer, string label, long total) : IProgress<int>
+{
+    private readonly Stopwatch _clock = Stopwatch.StartNew();
+    private readonly Lock _gate = new();
+    private long _lastReport = -1;
+    private long _done;
+    private long _written = -1;
+
+    public void Report(int value) => Report((long)value);
+
+    public void Report(long done)
+    {
+        lock (_gate)
+        {
+            _done = done;
+            var now = _clock.ElapsedMilliseconds;
+            if (_lastReport >= 0 && now - _lastReport < 500 && done < total)
+            {
+                return;
+            }
+
+            _lastReport = now;
+            Write();
+        }
+    }
+
+    public void Finish()
+    {
+        lock (_gate)
+        {
+            if (_written != _done)
+            {
+                Write();
+            }
+
+            writer.WriteLine();
+        }
+    }
+
+    private void Write()
+    {
+        _written = _done;
+        var seconds = Math.Max(_clock.Elapsed.TotalSeconds, 1e-3);
+        var percent = total == 0 ? 100 : 100.0 * _done / total;
+        writer.Write($"\r{label}: {_done}/{total} patients ({percent:F0} %), {_done / seconds:F0}/s, {seconds:F0} s elapsed   ");
+    }
+}

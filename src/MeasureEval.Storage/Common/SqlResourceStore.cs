@@ -1,0 +1,354 @@
+using System.Data;
+using System.Data.Common;
+using System.Globalization;
+using System.Runtime.CompilerServices;
+using System.Text;
+using MeasureEval.Core.Index;
+using MeasureEval.Core.Storage;
+using Microsoft.Extensions.Logging;
+
+namespace MeasureEval.Storage.Common;
+
+/// <summary>
+/// The store over ADO.NET, shared by both providers: the same tables and the same SQL wherever SQLite and PostgreSQL agree
+/// (<c>ON CONFLICT</c> upserts, <c>LIMIT/OFFSET</c>, <c>TRUE/FALSE</c>). A provider supplies connections, the schema
+/// scripts and the few statements that lock.
+/// </summary>
+public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
+{
+    /// <summary>Ids per query when streaming a chosen set of patients (well under both providers' parameter limits).</summary>
+    private const int PatientIdChunk = 500;
+
+    protected SqlResourceStore(TimeProvider timeProvider, ILogger logger)
+    {
+        TimeProvider = timeProvider ?? throw new ArgumentNullException(nameof(timeProvider));
+        Logger = logger ?? throw new ArgumentNullException(nameof(logger));
+    }
+
+    internal TimeProvider TimeProvider { get; }
+
+    protected ILogger Logger { get; }
+
+    /// <summary>Scripts that bring the schema from version i to i+1 (index i). Never edit a released one: append.</summary>
+    protected abstract IReadOnlyList<string> Migrations { get; }
+
+    /// <summary>
+    /// Returns (version, deleted, index_patient_id) of the resource's current row for parameters (type, id), locking it
+    /// against concurrent writers until the transaction ends. Version 0 means the resource does not exist.
+    /// </summary>
+    internal abstract string LockCurrentSql { get; }
+
+    /// <summary>Undoes what <see cref="LockCurrentSql"/> left behind for a resource that does not exist (parameters type, id), or null.</summary>
+    internal abstract string? ReleaseAbsentSql { get; }
+
+    /// <summary>Returns the stored facts (or no row / NULL) of patient @p0, locking the entry until the transaction ends.</summary>
+    internal abstract string LockIndexEntrySql { get; }
+
+    protected abstract ValueTask<DbConnection> OpenConnectionAsync(CancellationToken cancellationToken);
+
+    protected abstract ValueTask<DbTransaction> BeginWriteTransactionAsync(DbConnection connection, CancellationToken cancellationToken);
+
+    /// <summary>Keeps a second process from migrating at the same time (inside the migration transaction).</summary>
+    protected abstract System.Threading.Tasks.Task LockSchemaAsync(DbConnection connection, DbTransaction transaction, CancellationToken cancellationToken);
+
+    /// <summary>Waits for the right to write, released when the session ends (SQLite: one writer; PostgreSQL: row locks instead).</summary>
+    protected abstract ValueTask<IDisposable?> AcquireWriterAsync(CancellationToken cancellationToken);
+
+    protected virtual System.Threading.Tasks.Task PrepareDatabaseAsync(CancellationToken cancellationToken) => System.Threading.Tasks.Task.CompletedTask;
+
+    public async System.Threading.Tasks.Task InitializeAsync(CancellationToken cancellationToken)
+    {
+        await PrepareDatabaseAsync(cancellationToken).ConfigureAwait(false);
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var transaction = await BeginWriteTransactionAsync(connection, cancellationToken).ConfigureAwait(false);
+        await LockSchemaAsync(connection, transaction, cancellationToken).ConfigureAwait(false);
+        await ExecuteAsync(connection, transaction, "CREATE TABLE IF NOT EXISTS schema_version (version INTEGER NOT NULL)", cancellationToken).ConfigureAwait(false);
+
+        await using (var read = Command(connection, transaction, "SELECT MAX(version) FROM schema_version"))
+        {
+            var value = await read.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false);
+            var current = value is null or DBNull ? 0 : Convert.ToInt32(value, CultureInfo.InvariantCulture);
+            if (current > Migrations.Count)
+            {
+                throw new InvalidOperationException(
+                    $"The database schema is version {current}, newer than this build knows ({Migrations.Count}).");
+            }
+
+            for (var version = current; version < Migrations.Count; version++)
+            {
+                await ExecuteAsync(connection, transaction, Migrations[version], cancellationToken).ConfigureAwait(false);
+                await using var record = Command(connection, transaction, "INSERT INTO schema_version (version) VALUES (@p0)", version + 1);
+                await record.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+                Logger.LogInformation("Storage schema migrated to version {SchemaVersion}", version + 1);
+            }
+        }
+
+        await transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
+    }
+
+    public async System.Threading.Tasks.Task<bool> IsReadyAsync(CancellationToken cancellationToken)
+    {
+        try
+        {
+            await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+            await using var command = Command(connection, null, "SELECT MAX(version) FROM schema_version");
+            var value = await command.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false);
+            return value is not null and not DBNull;
+        }
+        catch (DbException ex)
+        {
+            Logger.LogWarning(ex, "Storage readiness check failed");
+            return false;
+        }
+    }
+
+    public async System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var command = Command(connection, null, StoreSql.ReadCurrent, resourceType, id);
+        return await ReadOneAsync(command, resourceType, id, cancellationToken).ConfigureAwait(false);
+    }
+
+    public async System.Threading.Tasks.Task<StoredResource?> ReadVersionAsync(string resourceType, string id, int versionId, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var command = Command(connection, null, StoreSql.ReadVersion, resourceType, id, versionId);
+        return await ReadOneAsync(command, resourceType, id, cancellationToken).ConfigureAwait(false);
+    }
+
+    public async System.Threading.Tasks.Task<IReadOnlyList<StoredResource>> HistoryAsync(string resourceType, string id, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var command = Command(connection, null, StoreSql.History, resourceType, id);
+        var versions = new List<StoredResource>();
+        await using var reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+        while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+        {
+            versions.Add(ToStored(reader, resourceType, id));
+        }
+
+        return versions;
+    }
+
+    public async System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        return await SearchAsync(connection, null, query, cancellationToken).ConfigureAwait(false);
+    }
+
+    public async System.Threading.Tasks.Task<IStoreSession> BeginWriteAsync(CancellationToken cancellationToken)
+    {
+        var writer = await AcquireWriterAsync(cancellationToken).ConfigureAwait(false);
+        DbConnection? connection = null;
+        try
+        {
+            connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+            var transaction = await BeginWriteTransactionAsync(connection, cancellationToken).ConfigureAwait(false);
+            return new SqlStoreSession(this, connection, transaction, writer);
+        }
+        catch
+        {
+            if (connection is not null)
+            {
+                await connection.DisposeAsync().ConfigureAwait(false);
+            }
+
+            writer?.Dispose();
+            throw;
+        }
+    }
+
+    public async System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(patientId);
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var command = Command(connection, null, StoreSql.ReadIndexEntry, patientId);
+        await using var reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+        return await reader.ReadAsync(cancellationToken).ConfigureAwait(false) && !reader.IsDBNull(0)
+            ? PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0))
+            : null;
+    }
+
+    public async IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(
+        IReadOnlyCollection<string>? patientIds, [EnumeratorCancellation] CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        if (patientIds is null)
+        {
+            await using var all = Command(connection, null, StoreSql.StreamIndex);
+            await foreach (var facts in ReadEntriesAsync(all, cancellationToken).ConfigureAwait(false))
+            {
+                yield return facts;
+            }
+
+            yield break;
+        }
+
+        // Sorted chunks keep the whole stream in id order while each query stays small.
+        var sorted = patientIds.Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal).ToArray();
+        foreach (var chunk in sorted.Chunk(PatientIdChunk))
+        {
+            var sql = new StringBuilder("SELECT facts FROM patient_index WHERE facts IS NOT NULL AND patient_id IN (");
+            for (var i = 0; i < chunk.Length; i++)
+            {
+                sql.Append(i == 0 ? "@p" : ", @p").Append(i.ToString(CultureInfo.InvariantCulture));
+            }
+
+            sql.Append(") ORDER BY patient_id");
+            await using var some = Command(connection, null, sql.ToString(), chunk);
+            await foreach (var facts in ReadEntriesAsync(some, cancellationToken).ConfigureAwait(false))
+            {
+                yield return facts;
+            }
+        }
+    }
+
+    public async ValueTask DisposeAsync()
+    {
+        await DisposeAsyncCore().ConfigureAwait(false);
+        GC.SuppressFinalize(this);
+    }
+
+    protected virtual ValueTask DisposeAsyncCore() => ValueTask.CompletedTask;
+
+    internal static async System.Threading.Tasks.Task<SearchResult> SearchAsync(
+        DbConnection connection, DbTransaction? transaction, SearchQuery query, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(query);
+        ArgumentOutOfRangeException.ThrowIfNegative(query.Count);
+        ArgumentOutOfRangeException.ThrowIfNegative(query.Offset);
+        var values = new List<object?> { query.ResourceType };
+        var where = new StringBuilder("r.type = @p0 AND r.deleted = FALSE AND r.version > 0");
+        string Next(object? value)
+        {
+            values.Add(value);
+            return "@p" + (values.Count - 1).ToString(CultureInfo.InvariantCulture);
+        }
+
+        if (query.Ids is { } ids)
+        {
+            where.Append(ids.Count == 0 ? " AND 1 = 0" : $" AND r.id IN ({string.Join(", ", ids.Select(id => Next(id)))})");
+        }
+
+        foreach (var range in query.LastUpdated ?? [])
+        {
+            if (range.From is { } from)
+            {
+                where.Append(" AND r.last_updated >= ").Append(Next(from.ToUnixTimeMilliseconds()));
+            }
+
+            if (range.Until is { } until)
+            {
+                where.Append(" AND r.last_updated < ").Append(Next(until.ToUnixTimeMilliseconds()));
+            }
+        }
+
+        foreach (var range in query.LastUpdatedNotIn ?? [])
+        {
+            var outside = new List<string>();
+            if (range.From is { } from)
+            {
+                outside.Add("r.last_updated < " + Next(from.ToUnixTimeMilliseconds()));
+            }
+
+            if (range.Until is { } until)
+            {
+                outside.Add("r.last_updated >= " + Next(until.ToUnixTimeMilliseconds()));
+            }
+
+            // A range open at both ends covers every instant, so nothing lies outside it.
+            where.Append(outside.Count == 0 ? " AND 1 = 0" : $" AND ({string.Join(" OR ", outside)})");
+        }
+
+        if (query.PatientId is { } patientId)
+        {
+            where.Append(" AND r.patient_id = ").Append(Next(patientId));
+        }
+
+        if (query.Identifiers is { } tokens)
+        {
+            var alternatives = tokens.Select(t => t.System is null
+                ? $"i.value = {Next(t.Value)}"
+                : $"(i.value = {Next(t.Value)} AND i.system = {Next(t.System)})").ToList();
+            where.Append(alternatives.Count == 0
+                ? " AND 1 = 0"
+                : $" AND EXISTS (SELECT 1 FROM resource_identifiers i WHERE i.type = r.type AND i.id = r.id AND ({string.Join(" OR ", alternatives)}))");
+        }
+
+        int total;
+        await using (var count = Command(connection, transaction, $"SELECT COUNT(*) FROM resources r WHERE {where}", [.. values]))
+        {
+            total = Convert.ToInt32(await count.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false), CultureInfo.InvariantCulture);
+        }
+
+        var matches = new List<StoredResource>();
+        if (query.Count > 0 && query.Offset < total)
+        {
+            var page = $"""
+                SELECT r.id, v.version, v.last_updated, v.deleted, v.json FROM resources r
+                JOIN resource_versions v ON v.type = r.type AND v.id = r.id AND v.version = r.version
+                WHERE {where} ORDER BY r.id LIMIT {Next(query.Count)} OFFSET {Next(query.Offset)}
+                """;
+            await using var select = Command(connection, transaction, page, [.. values]);
+            await using var reader = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+            while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+            {
+                matches.Add(new StoredResource(
+                    query.ResourceType,
+                    reader.GetString(0),
+                    reader.GetInt32(1),
+                    DateTimeOffset.FromUnixTimeMilliseconds(reader.GetInt64(2)),
+                    reader.GetBoolean(3),
+                    reader.IsDBNull(4) ? null : reader.GetString(4)));
+            }
+        }
+
+        return new SearchResult(matches, total);
+    }
+
+    /// <summary>Reads one row of (version, last_updated, deleted, json).</summary>
+    internal static async System.Threading.Tasks.Task<StoredResource?> ReadOneAsync(DbCommand command, string resourceType, string id, CancellationToken cancellationToken)
+    {
+        await using var reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+        return await reader.ReadAsync(cancellationToken).ConfigureAwait(false) ? ToStored(reader, resourceType, id) : null;
+    }
+
+    internal static DbCommand Command(DbConnection connection, DbTransaction? transaction, string sql, params object?[] values)
+    {
+        var command = connection.CreateCommand();
+        command.CommandText = sql;
+        command.Transaction = transaction;
+        for (var i = 0; i < values.Length; i++)
+        {
+            var parameter = command.CreateParameter();
+            parameter.ParameterName = "p" + i.ToString(CultureInfo.InvariantCulture);
+            parameter.Value = values[i] ?? DBNull.Value;
+            command.Parameters.Add(parameter);
+        }
+
+        return command;
+    }
+
+    protected static async System.Threading.Tasks.Task ExecuteAsync(DbConnection connection, DbTransaction? transaction, string sql, CancellationToken cancellationToken)
+    {
+        await using var command = Command(connection, transaction, sql);
+        await command.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+    }
+
+    private static StoredResource ToStored(DbDataReader reader, string resourceType, string id) => new(
+        resourceType,
+        id,
+        reader.GetInt32(0),
+        DateTimeOffset.FromUnixTimeMilliseconds(reader.GetInt64(1)),
+        reader.GetBoolean(2),
+        reader.IsDBNull(3) ? null : reader.GetString(3));
+
+    private static async IAsyncEnumerable<PatientFacts> ReadEntriesAsync(DbCommand command, [EnumeratorCancellation] CancellationToken cancellationToken)
+    {
+        await using var reader = await command.ExecuteReaderAsync(CommandBehavior.SequentialAccess, cancellationToken).ConfigureAwait(false);
+        while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+        {
+            yield return PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0));
+        }
+    }
+}

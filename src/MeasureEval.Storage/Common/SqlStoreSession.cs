@@ -1,0 +1,330 @@
+using System.Data.Common;
+using System.Globalization;
+using Hl7.Fhir.Model;
+using MeasureEval.Core.Fhir;
+using MeasureEval.Core.Index;
+using MeasureEval.Core.Storage;
+
+namespace MeasureEval.Storage.Common;
+
+/// <summary>
+/// One write transaction. Statements are created once per session and reused with new parameter values, and index
+/// entries are changed in memory and written back in batches, so a bulk ingest of many resources into one session
+/// pays per resource only for its own rows.
+/// </summary>
+internal sealed class SqlStoreSession : IStoreSession
+{
+    /// <summary>Index entries held in memory before they are written back (bounds a bulk session's memory).</summary>
+    private const int IndexEntryBatch = 2048;
+
+    private readonly SqlResourceStore _store;
+    private readonly DbConnection _connection;
+    private readonly DbTransaction _transaction;
+    private readonly IDisposable? _writer;
+    private readonly Dictionary<string, DbCommand> _commands = new(StringComparer.Ordinal);
+    private readonly Dictionary<string, PatientIndexEntry> _entries = new(StringComparer.Ordinal);
+    private bool _finished;
+
+    public SqlStoreSession(SqlResourceStore store, DbConnection connection, DbTransaction transaction, IDisposable? writer)
+    {
+        _store = store;
+        _connection = connection;
+        _transaction = transaction;
+        _writer = writer;
+    }
+
+    public async System.Threading.Tasks.Task<StoredResource> CreateAsync(Resource resource, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(resource);
+        EnsureOpen();
+        var id = ResourceKeys.NewId(_store.TimeProvider);
+        return await WriteAsync(resource, id, version: 1, previousIndexPatient: null, cancellationToken).ConfigureAwait(false);
+    }
+
+    public async System.Threading.Tasks.Task<WriteResult> UpdateAsync(Resource resource, int? ifMatchVersion, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(resource);
+        EnsureOpen();
+        var id = resource.Id;
+        if (!ResourceKeys.IsValidId(id))
+        {
+            throw new ArgumentException("The resource has no valid FHIR id.", nameof(resource));
+        }
+
+        var type = resource.TypeName;
+        var current = await LockCurrentAsync(type, id, cancellationToken).ConfigureAwait(false);
+        if (ifMatchVersion is { } expected && current?.Version != expected)
+        {
+            return await ConflictAsync(type, id, current, cancellationToken).ConfigureAwait(false);
+        }
+
+        var stored = await WriteAsync(resource, id, (current?.Version ?? 0) + 1, current?.IndexPatient, cancellationToken).ConfigureAwait(false);
+        return new WriteResult(stored, Created: current is null || current.Deleted, VersionConflict: false);
+    }
+
+    public async System.Threading.Tasks.Task<WriteResult> DeleteAsync(string resourceType, string id, int? ifMatchVersion, CancellationToken cancellationToken)
+    {
+        ArgumentException.ThrowIfNullOrEmpty(resourceType);
+        ArgumentException.ThrowIfNullOrEmpty(id);
+        EnsureOpen();
+        var current = await LockCurrentAsync(resourceType, id, cancellationToken).ConfigureAwait(false);
+        if (ifMatchVersion is { } expected && current?.Version != expected)
+        {
+            return await ConflictAsync(resourceType, id, current, cancellationToken).ConfigureAwait(false);
+        }
+
+        if (current is null)
+        {
+            await ReleaseAbsentAsync(resourceType, id, cancellationToken).ConfigureAwait(false);
+            return new WriteResult(null, Created: false, VersionConflict: false);
+        }
+
+        if (current.Deleted)
+        {
+            return new WriteResult(await ReadAsync(resourceType, id, cancellationToken).ConfigureAwait(false), Created: false, VersionConflict: false);
+        }
+
+        var version = current.Version + 1;
+        var now = Now();
+        var lastUpdated = now.ToUnixTimeMilliseconds();
+        await RunAsync(
+            [
+                (StoreSql.InsertVersion, [resourceType, id, version, lastUpdated, true, null]),
+                (StoreSql.UpsertCurrent, [resourceType, id, version, lastUpdated, true, null, null]),
+                (StoreSql.DeleteIdentifiers, [resourceType, id]),
+            ],
+            cancellationToken).ConfigureAwait(false);
+        if (current.IndexPatient is { } patientId)
+        {
+            (await EntryAsync(patientId, cancellationToken).ConfigureAwait(false)).Remove(resourceType, id);
+        }
+
+        return new WriteResult(new StoredResource(resourceType, id, version, now, Deleted: true, Json: null), Created: false, VersionConflict: false);
+    }
+
+    public async System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, CancellationToken cancellationToken)
+    {
+        EnsureOpen();
+        var command = Prepared(StoreSql.ReadCurrent, resourceType, id);
+        return await SqlResourceStore.ReadOneAsync(command, resourceType, id, cancellationToken).ConfigureAwait(false);
+    }
+
+    public System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken)
+    {
+        EnsureOpen();
+        return SqlResourceStore.SearchAsync(_connection, _transaction, query, cancellationToken);
+    }
+
+    public async System.Threading.Tasks.Task CommitAsync(CancellationToken cancellationToken)
+    {
+        EnsureOpen();
+        await FlushIndexAsync(cancellationToken).ConfigureAwait(false);
+        await _transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
+        _finished = true;
+    }
+
+    public async ValueTask DisposeAsync()
+    {
+        try
+        {
+            foreach (var command in _commands.Values)
+            {
+                await command.DisposeAsync().ConfigureAwait(false);
+            }
+
+            // Disposing an uncommitted transaction rolls it back.
+            await _transaction.DisposeAsync().ConfigureAwait(false);
+            await _connection.DisposeAsync().ConfigureAwait(false);
+        }
+        finally
+        {
+            _finished = true;
+            _writer?.Dispose();
+        }
+    }
+
+    private async System.Threading.Tasks.Task<StoredResource> WriteAsync(
+        Resource resource, string id, int version, string? previousIndexPatient, CancellationToken cancellationToken)
+    {
+        var type = resource.TypeName;
+        var now = Now();
+        resource.Id = id;
+        resource.Meta ??= new Meta();
+        resource.Meta.VersionId = version.ToString(CultureInfo.InvariantCulture);
+        resource.Meta.LastUpdated = now;
+        var json = FhirJson.Serialize(resource);
+        var lastUpdated = now.ToUnixTimeMilliseconds();
+        var contribution = FactExtractor.TryExtract(resource, out var extracted) ? extracted : null;
+
+        var statements = new List<(string, object?[])>(4)
+        {
+            (StoreSql.InsertVersion, [type, id, version, lastUpdated, false, json]),
+            (StoreSql.UpsertCurrent, [type, id, version, lastUpdated, false, ResourceKeys.CompartmentPatientOf(resource), contribution?.PatientId]),
+        };
+        if (version > 1)
+        {
+            statements.Add((StoreSql.DeleteIdentifiers, [type, id]));
+        }
+
+        foreach (var (system, value) in ResourceKeys.IdentifiersOf(resource))
+        {
+            statements.Add((StoreSql.InsertIdentifier, [type, id, system, value]));
+        }
+
+        await RunAsync(statements, cancellationToken).ConfigureAwait(false);
+
+        if (previousIndexPatient is not null)
+        {
+            (await EntryAsync(previousIndexPatient, cancellationToken).ConfigureAwait(false)).Remove(type, id);
+        }
+
+        if (contribution is not null)
+        {
+            (await EntryAsync(contribution.PatientId, cancellationToken).ConfigureAwait(false)).Add(contribution);
+        }
+
+        return new StoredResource(type, id, version, now, Deleted: false, json);
+    }
+
+    private async System.Threading.Tasks.Task<WriteResult> ConflictAsync(string type, string id, CurrentRow? current, CancellationToken cancellationToken)
+    {
+        if (current is null)
+        {
+            await ReleaseAbsentAsync(type, id, cancellationToken).ConfigureAwait(false);
+        }
+
+        var stored = current is null ? null : await ReadAsync(type, id, cancellationToken).ConfigureAwait(false);
+        return new WriteResult(stored, Created: false, VersionConflict: true);
+    }
+
+    private async System.Threading.Tasks.Task ReleaseAbsentAsync(string type, string id, CancellationToken cancellationToken)
+    {
+        if (_store.ReleaseAbsentSql is { } release)
+        {
+            await ExecuteAsync(release, cancellationToken, type, id).ConfigureAwait(false);
+        }
+    }
+
+    /// <summary>The current row, locked for this transaction; null when the resource was never stored.</summary>
+    private async System.Threading.Tasks.Task<CurrentRow?> LockCurrentAsync(string type, string id, CancellationToken cancellationToken)
+    {
+        var command = Prepared(_store.LockCurrentSql, type, id);
+        await using var reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+        if (!await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+        {
+            return null;
+        }
+
+        var version = reader.GetInt32(0);
+        return version == 0 ? null : new CurrentRow(version, reader.GetBoolean(1), reader.IsDBNull(2) ? null : reader.GetString(2));
+    }
+
+    private async System.Threading.Tasks.Task<PatientIndexEntry> EntryAsync(string patientId, CancellationToken cancellationToken)
+    {
+        if (_entries.TryGetValue(patientId, out var entry))
+        {
+            return entry;
+        }
+
+        if (_entries.Count >= IndexEntryBatch)
+        {
+            await FlushIndexAsync(cancellationToken).ConfigureAwait(false);
+        }
+
+        PatientFacts? stored = null;
+        var command = Prepared(_store.LockIndexEntrySql, patientId);
+        await using (var reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false))
+        {
+            if (await reader.ReadAsync(cancellationToken).ConfigureAwait(false) && !reader.IsDBNull(0))
+            {
+                stored = PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0));
+            }
+        }
+
+        entry = PatientIndexEntry.From(stored);
+        _entries.Add(patientId, entry);
+        return entry;
+    }
+
+    private async System.Threading.Tasks.Task FlushIndexAsync(CancellationToken cancellationToken)
+    {
+        if (_entries.Count == 0)
+        {
+            return;
+        }
+
+        var statements = _entries.Select(e => e.Value.IsEmpty
+            ? (StoreSql.DeleteIndexEntry, new object?[] { e.Key })
+            : (StoreSql.UpsertIndexEntry, [e.Key, PatientFactsCodec.Encode(e.Value.ToFacts(e.Key))])).ToList();
+        await RunAsync(statements, cancellationToken).ConfigureAwait(false);
+        _entries.Clear();
+    }
+
+    private DateTimeOffset Now()
+    {
+        // Stored to the millisecond, so the body's meta.lastUpdated and the searchable column agree.
+        var now = _store.TimeProvider.GetUtcNow();
+        return DateTimeOffset.FromUnixTimeMilliseconds(now.ToUnixTimeMilliseconds());
+    }
+
+    /// <summary>
+    /// Runs statements that return nothing: as one batch where the provider has batches (PostgreSQL: one round trip),
+    /// otherwise one by one through the session's reused commands (SQLite: in-process calls, nothing to save).
+    /// </summary>
+    private async System.Threading.Tasks.Task RunAsync(IReadOnlyList<(string Sql, object?[] Values)> statements, CancellationToken cancellationToken)
+    {
+        if (!_connection.CanCreateBatch)
+        {
+            foreach (var (sql, values) in statements)
+            {
+                await ExecuteAsync(sql, cancellationToken, values).ConfigureAwait(false);
+            }
+
+            return;
+        }
+
+        await using var batch = _connection.CreateBatch();
+        batch.Transaction = _transaction;
+        foreach (var (sql, values) in statements)
+        {
+            var command = batch.CreateBatchCommand();
+            command.CommandText = sql;
+            for (var i = 0; i < values.Length; i++)
+            {
+                var parameter = command.CreateParameter();
+                parameter.ParameterName = "p" + i.ToString(CultureInfo.InvariantCulture);
+                parameter.Value = values[i] ?? DBNull.Value;
+                command.Parameters.Add(parameter);
+            }
+
+            batch.BatchCommands.Add(command);
+        }
+
+        await batch.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+    }
+
+    private async System.Threading.Tasks.Task ExecuteAsync(string sql, CancellationToken cancellationToken, params object?[] values) =>
+        await Prepared(sql, values).ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+
+    /// <summary>The session's command for this statement, created on first use, with the given parameter values.</summary>
+    private DbCommand Prepared(string sql, params object?[] values)
+    {
+        if (!_commands.TryGetValue(sql, out var command))
+        {
+            command = SqlResourceStore.Command(_connection, _transaction, sql, values);
+            _commands.Add(sql, command);
+            return command;
+        }
+
+        for (var i = 0; i < values.Length; i++)
+        {
+            command.Parameters[i].Value = values[i] ?? DBNull.Value;
+        }
+
+        return command;
+    }
+
+    private void EnsureOpen() => ObjectDisposedException.ThrowIf(_finished, this);
+
+    private sealed record CurrentRow(int Version, bool Deleted, string? IndexPatient);
+}

@@ -1,0 +1,52 @@
+namespace MeasureEval.Storage.Common;
+
+/// <summary>Statements both providers run unchanged. Parameters are positional: @p0, @p1, …</summary>
+internal static class StoreSql
+{
+    /// <summary>(type, id) → (version, last_updated, deleted, json) of the current version.</summary>
+    public const string ReadCurrent = """
+        SELECT v.version, v.last_updated, v.deleted, v.json FROM resources r
+        JOIN resource_versions v ON v.type = r.type AND v.id = r.id AND v.version = r.version
+        WHERE r.type = @p0 AND r.id = @p1 AND r.version > 0
+        """;
+
+    public const string ReadVersion = """
+        SELECT version, last_updated, deleted, json FROM resource_versions
+        WHERE type = @p0 AND id = @p1 AND version = @p2
+        """;
+
+    public const string History = """
+        SELECT version, last_updated, deleted, json FROM resource_versions
+        WHERE type = @p0 AND id = @p1 ORDER BY version DESC
+        """;
+
+    /// <summary>(type, id, version, last_updated, deleted, json).</summary>
+    public const string InsertVersion = """
+        INSERT INTO resource_versions (type, id, version, last_updated, deleted, json) VALUES (@p0, @p1, @p2, @p3, @p4, @p5)
+        """;
+
+    /// <summary>(type, id, version, last_updated, deleted, patient_id, index_patient_id).</summary>
+    public const string UpsertCurrent = """
+        INSERT INTO resources (type, id, version, last_updated, deleted, patient_id, index_patient_id)
+        VALUES (@p0, @p1, @p2, @p3, @p4, @p5, @p6)
+        ON CONFLICT (type, id) DO UPDATE SET version = excluded.version, last_updated = excluded.last_updated,
+            deleted = excluded.deleted, patient_id = excluded.patient_id, index_patient_id = excluded.index_patient_id
+        """;
+
+    public const string DeleteIdentifiers = "DELETE FROM resource_identifiers WHERE type = @p0 AND id = @p1";
+
+    /// <summary>(type, id, system, value).</summary>
+    public const string InsertIdentifier = "INSERT INTO resource_identifiers (type, id, system, value) VALUES (@p0, @p1, @p2, @p3)";
+
+    public const string ReadIndexEntry = "SELECT facts FROM patient_index WHERE patient_id = @p0";
+
+    public const string StreamIndex = "SELECT facts FROM patient_index WHERE facts IS NOT NULL ORDER BY patient_id";
+
+    /// <summary>(patient_id, facts).</summary>
+    public const string UpsertIndexEntry = """
+        INSERT INTO patient_index (patient_id, facts) VALUES (@p0, @p1)
+        ON CONFLICT (patient_id) DO UPDATE SET facts = excluded.facts
+        """;
+
+    public const string DeleteIndexEntry = "DELETE FROM patient_index WHERE patient_id = @p0";
+}

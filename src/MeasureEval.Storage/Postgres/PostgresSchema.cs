@@ -1,0 +1,48 @@
+namespace MeasureEval.Storage.Postgres;
+
+/// <summary>
+/// PostgreSQL schema, one script per version; the same tables as SQLite. Text keys use the "C" collation so that
+/// ORDER BY matches ordinal string order (as the index stream promises) whatever the database locale.
+/// </summary>
+internal static class PostgresSchema
+{
+    public static readonly IReadOnlyList<string> Migrations =
+    [
+        """
+        CREATE TABLE resource_versions (
+            type text COLLATE "C" NOT NULL,
+            id text COLLATE "C" NOT NULL,
+            version integer NOT NULL,
+            last_updated bigint NOT NULL,
+            deleted boolean NOT NULL,
+            json text,
+            PRIMARY KEY (type, id, version)
+        );
+        CREATE TABLE resources (
+            type text COLLATE "C" NOT NULL,
+            id text COLLATE "C" NOT NULL,
+            version integer NOT NULL,
+            last_updated bigint NOT NULL,
+            deleted boolean NOT NULL,
+            patient_id text COLLATE "C",
+            index_patient_id text COLLATE "C",
+            PRIMARY KEY (type, id)
+        );
+        CREATE INDEX resources_by_patient ON resources (type, patient_id, id) WHERE patient_id IS NOT NULL;
+        CREATE INDEX resources_by_last_updated ON resources (type, last_updated);
+        CREATE TABLE resource_identifiers (
+            type text COLLATE "C" NOT NULL,
+            id text COLLATE "C" NOT NULL,
+            system text COLLATE "C" NOT NULL,
+            value text COLLATE "C" NOT NULL,
+            PRIMARY KEY (type, id, system, value)
+        );
+        CREATE INDEX resource_identifiers_by_value ON resource_identifiers (type, value, system);
+        -- facts is NULL only while a writing transaction holds a new entry's row (see PostgresResourceStore).
+        CREATE TABLE patient_index (
+            patient_id text COLLATE "C" NOT NULL PRIMARY KEY,
+            facts bytea
+        );
+        """,
+    ];
+}

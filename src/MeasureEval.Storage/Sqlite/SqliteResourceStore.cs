@@ -1,0 +1,103 @@
+using System.Data.Common;
+using Microsoft.Data.Sqlite;
+using Microsoft.Extensions.Logging;
+using MeasureEval.Storage.Common;
+
+namespace MeasureEval.Storage.Sqlite;
+
+/// <summary>
+/// The SQLite store: WAL so readers never wait for the writer, synchronous=NORMAL (durable across process crashes;
+/// the last commits may be lost on power failure), and one writer at a time, queued in-process.
+/// </summary>
+public sealed class SqliteResourceStore : SqlResourceStore
+{
+    private readonly string _connectionString;
+    private readonly SemaphoreSlim _writer = new(1, 1);
+
+    public SqliteResourceStore(string connectionString, TimeProvider timeProvider, ILogger<SqliteResourceStore> logger)
+        : base(timeProvider, logger)
+    {
+        var builder = new SqliteConnectionStringBuilder(connectionString)
+        {
+            Mode = SqliteOpenMode.ReadWriteCreate,
+            Pooling = true,
+        };
+        _connectionString = builder.ToString();
+        DataSource = builder.DataSource;
+    }
+
+    /// <summary>The database file.</summary>
+    public string DataSource { get; }
+
+    protected override IReadOnlyList<string> Migrations => SqliteSchema.Migrations;
+
+    // The single writer makes a plain read enough: nobody else can change the row before this session ends.
+    internal override string LockCurrentSql => "SELECT version, deleted, index_patient_id FROM resources WHERE type = @p0 AND id = @p1";
+
+    internal override string? ReleaseAbsentSql => null;
+
+    internal override string LockIndexEntrySql => "SELECT facts FROM patient_index WHERE patient_id = @p0";
+
+    protected override System.Threading.Tasks.Task PrepareDatabaseAsync(CancellationToken cancellationToken)
+    {
+        var directory = Path.GetDirectoryName(Path.GetFullPath(DataSource));
+        if (!string.IsNullOrEmpty(directory))
+        {
+            Directory.CreateDirectory(directory);
+        }
+
+        return System.Threading.Tasks.Task.CompletedTask;
+    }
+
+    protected override async ValueTask<DbConnection> OpenConnectionAsync(CancellationToken cancellationToken)
+    {
+        var connection = new SqliteConnection(_connectionString);
+        try
+        {
+            await connection.OpenAsync(cancellationToken).ConfigureAwait(false);
+            await using var pragmas = connection.CreateCommand();
+
+            // journal_mode is stored in the file; the others hold per connection.
+            pragmas.CommandText = "PRAGMA journal_mode = WAL; PRAGMA synchronous = NORMAL; PRAGMA busy_timeout = 10000; PRAGMA cache_size = -65536;";
+            await pragmas.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+            return connection;
+        }
+        catch
+        {
+            await connection.DisposeAsync().ConfigureAwait(false);
+            throw;
+        }
+    }
+
+    protected override ValueTask<DbTransaction> BeginWriteTransactionAsync(DbConnection connection, CancellationToken cancellationToken) =>
+        // BEGIN IMMEDIATE: take the write lock now, not at the first write, so another process makes us wait (busy_timeout) instead of failing mid-session.
+        ValueTask.FromResult<DbTransaction>(((SqliteConnection)connection).BeginTransaction(deferred: false));
+
+    protected override System.Threading.Tasks.Task LockSchemaAsync(DbConnection connection, DbTransaction transaction, CancellationToken cancellationToken) =>
+        System.Threading.Tasks.Task.CompletedTask;
+
+    protected override async ValueTask<IDisposable?> AcquireWriterAsync(CancellationToken cancellationToken)
+    {
+        await _writer.WaitAsync(cancellationToken).ConfigureAwait(false);
+        return new WriterLease(_writer);
+    }
+
+    protected override ValueTask DisposeAsyncCore()
+    {
+        // Pooled connections keep the file open; release them so the file can be moved or deleted.
+        using (var connection = new SqliteConnection(_connectionString))
+        {
+            SqliteConnection.ClearPool(connection);
+        }
+
+        _writer.Dispose();
+        return ValueTask.CompletedTask;
+    }
+
+    private sealed class WriterLease(SemaphoreSlim writer) : IDisposable
+    {
+        private SemaphoreSlim? _writer = writer;
+
+        public void Dispose() => Interlocked.Exchange(ref _writer, null)?.Release();
+    }
+}

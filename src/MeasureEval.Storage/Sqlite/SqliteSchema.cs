@@ -1,0 +1,48 @@
+namespace MeasureEval.Storage.Sqlite;
+
+/// <summary>
+/// SQLite schema, one script per version. <c>WITHOUT ROWID</c> keeps each small table clustered by its key:
+/// the current-version table by (type, id) so searches come back in id order, the index by patient id so a
+/// population streams as one ordered scan.
+/// </summary>
+internal static class SqliteSchema
+{
+    public static readonly IReadOnlyList<string> Migrations =
+    [
+        """
+        CREATE TABLE resource_versions (
+            type TEXT NOT NULL,
+            id TEXT NOT NULL,
+            version INTEGER NOT NULL,
+            last_updated INTEGER NOT NULL,
+            deleted INTEGER NOT NULL,
+            json TEXT,
+            PRIMARY KEY (type, id, version)
+        );
+        CREATE TABLE resources (
+            type TEXT NOT NULL,
+            id TEXT NOT NULL,
+            version INTEGER NOT NULL,
+            last_updated INTEGER NOT NULL,
+            deleted INTEGER NOT NULL,
+            patient_id TEXT,
+            index_patient_id TEXT,
+            PRIMARY KEY (type, id)
+        ) WITHOUT ROWID;
+        CREATE INDEX resources_by_patient ON resources (type, patient_id) WHERE patient_id IS NOT NULL;
+        CREATE INDEX resources_by_last_updated ON resources (type, last_updated);
+        CREATE TABLE resource_identifiers (
+            type TEXT NOT NULL,
+            id TEXT NOT NULL,
+            system TEXT NOT NULL,
+            value TEXT NOT NULL,
+            PRIMARY KEY (type, id, system, value)
+        ) WITHOUT ROWID;
+        CREATE INDEX resource_identifiers_by_value ON resource_identifiers (type, value, system);
+        CREATE TABLE patient_index (
+            patient_id TEXT NOT NULL PRIMARY KEY,
+            facts BLOB NOT NULL
+        ) WITHOUT ROWID;
+        """,
+    ];
+}

@@ -1,0 +1,32 @@
+using MeasureEval.Storage.Common;
+using MeasureEval.Storage.Postgres;
+using MeasureEval.Testing;
+using Microsoft.Extensions.Logging.Abstractions;
+
+namespace MeasureEval.Storage.Tests.Postgres;
+
+/// <summary>The store contract on a throwaway PostgreSQL 15 server, one schema per test.</summary>
+public sealed class PostgresResourceStoreTests(PostgresServer server) : ResourceStoreContract, IClassFixture<PostgresServer>
+{
+    [SkippableFact]
+    public async System.Threading.Tasks.Task InitializeAsync_ConcurrentStarts_MigrateOnce()
+    {
+        Skip.IfNot(server.IsAvailable, server.UnavailableReason);
+        var connectionString = await server.CreateSchemaAsync();
+        await using var first = new PostgresResourceStore(connectionString, Time, NullLogger<PostgresResourceStore>.Instance);
+        await using var second = new PostgresResourceStore(connectionString, Time, NullLogger<PostgresResourceStore>.Instance);
+
+        await System.Threading.Tasks.Task.WhenAll(first.InitializeAsync(default), second.InitializeAsync(default));
+
+        Assert.True(await first.IsReadyAsync(default));
+        Assert.True(await second.IsReadyAsync(default));
+    }
+
+    protected override async System.Threading.Tasks.Task<SqlResourceStore> CreateStoreAsync()
+    {
+        Skip.IfNot(server.IsAvailable, server.UnavailableReason);
+        var store = new PostgresResourceStore(await server.CreateSchemaAsync(), Time, NullLogger<PostgresResourceStore>.Instance);
+        await store.InitializeAsync(default);
+        return store;
+    }
+}

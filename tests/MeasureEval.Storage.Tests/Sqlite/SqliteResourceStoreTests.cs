@@ -1,0 +1,40 @@
+using MeasureEval.Storage.Common;
+using MeasureEval.Storage.Sqlite;
+using Microsoft.Extensions.Logging.Abstractions;
+
+namespace MeasureEval.Storage.Tests.Sqlite;
+
+/// <summary>The store contract on SQLite, one database file per test.</summary>
+public sealed class SqliteResourceStoreTests : ResourceStoreContract, IDisposable
+{
+    private readonly DirectoryInfo _directory = Directory.CreateTempSubdirectory("measureeval-sqlite-");
+
+    public void Dispose() => _directory.Delete(recursive: true);
+
+    [Fact]
+    public async System.Threading.Tasks.Task InitializeAsync_MissingDirectory_CreatesIt()
+    {
+        var file = Path.Combine(_directory.FullName, "nested", "data", "store.db");
+        await using var store = new SqliteResourceStore($"Data Source={file}", Time, NullLogger<SqliteResourceStore>.Instance);
+
+        await store.InitializeAsync(default);
+
+        Assert.True(File.Exists(file));
+        Assert.True(await store.IsReadyAsync(default));
+    }
+
+    [Fact]
+    public async System.Threading.Tasks.Task IsReadyAsync_BeforeInitialize_ReturnsFalse()
+    {
+        await using var store = new SqliteResourceStore($"Data Source={Path.Combine(_directory.FullName, "empty.db")}", Time, NullLogger<SqliteResourceStore>.Instance);
+
+        Assert.False(await store.IsReadyAsync(default));
+    }
+
+    protected override async System.Threading.Tasks.Task<SqlResourceStore> CreateStoreAsync()
+    {
+        var store = new SqliteResourceStore($"Data Source={Path.Combine(_directory.FullName, "store.db")}", Time, NullLogger<SqliteResourceStore>.Instance);
+        await store.InitializeAsync(default);
+        return store;
+    }
+}
