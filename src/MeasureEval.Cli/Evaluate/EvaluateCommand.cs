@@ -6,6 +6,7 @@ using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Index;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
+using MeasureEval.Engine.Reports;
 
 namespace MeasureEval.Cli.Evaluate;
 
@@ -122,10 +123,10 @@ internal static class EvaluateCommand
                 }
 
                 progress.Finish();
-                var generatedAt = time.GetUtcNow();
+                var reports = new MeasureReportBuilder(time);
                 foreach (var summary in summaries)
                 {
-                    var report = SummaryReportBuilder.Build(summary, generatedAt);
+                    var report = reports.Summary(summary);
                     await File.WriteAllTextAsync(Path.Combine(outDir, $"{summary.Measure.Id}.measure-report.json"), FhirJson.Serialize(report, pretty: true) + "\n", cancellationToken).ConfigureAwait(false);
                 }
 

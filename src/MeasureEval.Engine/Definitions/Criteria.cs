@@ -153,7 +153,7 @@ public enum Timing
     EndsIn,
     /// <summary>First day of the onset/record time (recordedDate standing in for a missing Condition onset) ≤ window end.</summary>
     OnsetOnOrBefore,
-    /// <summary>First day of the onset/record time (recordedDate standing in) &lt; window start.</summary>
+    /// <summary>First day of the onset/record time &lt; window start (no recordedDate standing in: this is not an on-or-before test).</summary>
     OnsetBefore,
 }
 
@@ -195,6 +195,9 @@ public sealed class Retrieve
     public bool IgnoreClinicalStatus { get; init; }
 
     public CalendarAmount? AssumedDuration { get; init; }
+
+    /// <summary>Condition with an onset test: it must not have abated before this date (abatement, else the clinicalStatus rule).</summary>
+    public DateExpression? NotAbatedBefore { get; init; }
 
     public CalendarAmount? AgeAtEventAtLeast { get; init; }
 

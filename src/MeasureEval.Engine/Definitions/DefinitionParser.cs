@@ -583,7 +583,7 @@ internal sealed partial class DefinitionParser
         CheckKeys(body, path,
         [
             "resource", "valueSet", "label", "status", "encounterClass", "dischargeDisposition", "statusReason", "dataAbsentReason",
-            "component", "window", "timing", "ignoreClinicalStatus", "assumedDuration", "ageAtEvent", "valueIn", "where", .. extraKeys,
+            "component", "window", "timing", "ignoreClinicalStatus", "assumedDuration", "notAbatedBefore", "ageAtEvent", "valueIn", "where", .. extraKeys,
         ]);
         var resource = String(body, "resource", path, required: true);
         if (resource is not null && Array.IndexOf(ResourceTypes, resource) < 0)
@@ -632,6 +632,12 @@ internal sealed partial class DefinitionParser
         if (assumed is not null && resource is not null and not "Condition")
         {
             Error($"{path}.assumedDuration", "only a Condition without abatement has an assumed duration");
+        }
+
+        var notAbatedBefore = body.TryGetProperty("notAbatedBefore", out _) ? Date(body, "notAbatedBefore", path, required: true, insideThen) : null;
+        if (notAbatedBefore is not null && (resource is not null and not "Condition" || timing is not (Timing.OnsetOnOrBefore or Timing.OnsetBefore)))
+        {
+            Error($"{path}.notAbatedBefore", "applies to a Condition with timing onsetOnOrBefore or onsetBefore (overlaps already tests abatement)");
         }
 
         CalendarAmount? ageAtEvent = null;
@@ -713,6 +719,7 @@ internal sealed partial class DefinitionParser
             Timing = timing,
             IgnoreClinicalStatus = ignoreClinical,
             AssumedDuration = assumed,
+            NotAbatedBefore = notAbatedBefore,
             AgeAtEventAtLeast = ageAtEvent,
             ValueIn = valueIn,
             Where = where,

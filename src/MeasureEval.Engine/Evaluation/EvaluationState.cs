@@ -47,6 +47,12 @@ internal sealed class EvaluationState
 
     public List<CountDetail> Counts { get; } = [];
 
+    /// <summary>Gap reports: when set, every mostRecent and sameDay records the record(s) it chose, met or not.</summary>
+    public List<(Criterion Criterion, Scope Scope)>? Chosen { get; init; }
+
+    /// <summary>Gap reports: retrieves ignore their window start, so that records too old to count are still seen as evidence.</summary>
+    public bool OpenWindowStart { get; init; }
+
     public (int Evidence, int Definitions) Mark() => (Evidence.Count, Definitions.Count);
 
     public void Rollback((int Evidence, int Definitions) mark)

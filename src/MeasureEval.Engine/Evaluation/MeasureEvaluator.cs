@@ -54,11 +54,11 @@ public sealed class MeasureEvaluator
         var definitions = new Dictionary<PopulationKind, IReadOnlyList<string>>();
         if (patient.Demographics is null)
         {
-            state.Find(FindingCodes.MissingPatient, "only records that point at the patient are stored, not the Patient resource", patient.Reference);
+            state.Find(FindingCodes.MissingPatient, "only records that point at the patient are stored, not the Patient resource", null);
         }
         else if (patient.BirthFirst is null)
         {
-            state.Find(FindingCodes.MissingBirthDate, "the patient has no usable birthDate and is in no initial population", patient.Reference);
+            state.Find(FindingCodes.MissingBirthDate, "the patient has no usable birthDate and is in no initial population", null);
         }
 
         bool Population(PopulationKind kind, bool fallback)
@@ -109,7 +109,7 @@ public sealed class MeasureEvaluator
         };
     }
 
-    private bool Eval(Criterion criterion, EvaluationState state, Scope scope)
+    internal bool Eval(Criterion criterion, EvaluationState state, Scope scope)
     {
         var mark = state.Mark();
         var result = criterion switch
@@ -197,7 +197,7 @@ public sealed class MeasureEvaluator
         {
             if (!state.Cache.TryGet(definition, out var cached))
             {
-                var inner = new EvaluationState(state.Patient, state.Period, state.Measure, state.Cache, state.Records);
+                var inner = new EvaluationState(state.Patient, state.Period, state.Measure, state.Cache, state.Records) { Chosen = state.Chosen, OpenWindowStart = state.OpenWindowStart };
                 var value = Eval(definition.Body, inner, scope);
                 cached = new DefinitionCache.Entry(value, [.. inner.Evidence], [.. inner.Definitions], [.. inner.Findings], [.. inner.Counts]);
                 state.Cache.Add(definition, cached);
@@ -224,7 +224,7 @@ public sealed class MeasureEvaluator
         return result;
     }
 
-    private static DateOnly? Resolve(DateExpression? expression, EvaluationState state, Scope scope)
+    internal static DateOnly? Resolve(DateExpression? expression, EvaluationState state, Scope scope)
     {
         if (expression is null)
         {
@@ -267,7 +267,7 @@ public sealed class MeasureEvaluator
         var result = Holds(first);
         if (patient.BirthPartial && Holds(patient.BirthLast!.Value) != result)
         {
-            state.Find(FindingCodes.PartialBirthDate, $"the partial birthDate '{patient.Demographics?.BirthDate}' was taken at its first day; the age test on {on:yyyy-MM-dd} depends on the exact day", patient.Reference);
+            state.Find(FindingCodes.PartialBirthDate, $"the partial birthDate '{patient.Demographics?.BirthDate}' was taken at its first day; the age test on {on:yyyy-MM-dd} depends on the exact day", null);
         }
 
         return Demographic(state, result);
@@ -292,7 +292,7 @@ public sealed class MeasureEvaluator
         var result = Holds(first);
         if (patient.BirthPartial && Holds(patient.BirthLast!.Value) != result)
         {
-            state.Find(FindingCodes.PartialBirthDate, $"the partial birthDate '{patient.Demographics?.BirthDate}' was taken at its first day; the birthday test depends on the exact day", patient.Reference);
+            state.Find(FindingCodes.PartialBirthDate, $"the partial birthDate '{patient.Demographics?.BirthDate}' was taken at its first day; the birthday test depends on the exact day", null);
         }
 
         return Demographic(state, result);
@@ -387,6 +387,7 @@ public sealed class MeasureEvaluator
         }
 
         state.Evidence.Add(best.Record.Reference);
+        state.Chosen?.Add((mostRecent, new Scope(best, null)));
         return mostRecent.Then is null || Eval(mostRecent.Then, state, new Scope(best, null));
     }
 
@@ -464,6 +465,7 @@ public sealed class MeasureEvaluator
             state.Evidence.Add(perValue[i][latest].Record.Reference);
         }
 
+        state.Chosen?.Add((sameDay, new Scope(scope.Record, named)));
         return sameDay.Then is null || Eval(sameDay.Then, state, new Scope(scope.Record, named));
     }
 
@@ -525,9 +527,9 @@ public sealed class MeasureEvaluator
             yield break;
         }
 
-        var from = Resolve(retrieve.Window?.From, state, scope);
+        var from = state.OpenWindowStart ? null : Resolve(retrieve.Window?.From, state, scope);
         var to = Resolve(retrieve.Window?.To, state, scope);
-        if ((retrieve.Window?.From is not null && from is null) || (retrieve.Window?.To is not null && to is null))
+        if ((!state.OpenWindowStart && retrieve.Window?.From is not null && from is null) || (retrieve.Window?.To is not null && to is null))
         {
             yield break;
         }
@@ -545,7 +547,7 @@ public sealed class MeasureEvaluator
                 continue;
             }
 
-            if (!TimeMatches(retrieve, record, from, to, state))
+            if (!TimeMatches(retrieve, record, from, to, state, scope))
             {
                 continue;
             }
@@ -641,12 +643,12 @@ public sealed class MeasureEvaluator
     private static bool ReasonMatches(Retrieve retrieve, ClinicalFact fact) =>
         retrieve.StatusReason is null || fact.StatusReason.Any(c => c.System == CodeSystems.ActReason && c.Code is not null && retrieve.StatusReason.Contains(c.Code));
 
-    private static bool TimeMatches(Retrieve retrieve, PreparedRecord record, DateOnly? from, DateOnly? to, EvaluationState state)
+    private static bool TimeMatches(Retrieve retrieve, PreparedRecord record, DateOnly? from, DateOnly? to, EvaluationState state, Scope scope)
     {
         var fact = record.Fact;
         if (fact.ResourceType == "Condition")
         {
-            return ConditionMatches(retrieve, record, from, to, state);
+            return ConditionMatches(retrieve, record, from, to, state, scope);
         }
 
         if (record.Point is not { } point)
@@ -669,7 +671,13 @@ public sealed class MeasureEvaluator
             case Timing.Overlaps:
                 return Overlaps(point.First, point.Last);
             case Timing.StartsIn when fact.ResourceType == "Encounter":
-                return record.PeriodStart is { } start && Inside(start.First, start.Last);
+                if (record.PeriodStart is not { } start)
+                {
+                    state.Find(FindingCodes.NoUsableTime, "an Encounter whose period has no start never starts in a window", record.Reference);
+                    return false;
+                }
+
+                return Inside(start.First, start.Last);
             case Timing.EndsIn when fact.ResourceType == "Encounter":
                 return record.PeriodEnd is { } end && Inside(end.First, end.Last);
             case Timing.In when fact.ResourceType == "Encounter":
@@ -679,20 +687,24 @@ public sealed class MeasureEvaluator
         }
     }
 
-    private static bool ConditionMatches(Retrieve retrieve, PreparedRecord record, DateOnly? from, DateOnly? to, EvaluationState state)
+    private static bool ConditionMatches(Retrieve retrieve, PreparedRecord record, DateOnly? from, DateOnly? to, EvaluationState state, Scope scope)
     {
         if (retrieve.Timing is Timing.OnsetOnOrBefore or Timing.OnsetBefore)
         {
-            // History rules need only the onset; recordedDate stands in for a missing one.
-            if ((record.OnsetFirst ?? record.RecordedFirst) is not { } first)
+            // History rules need only the onset; recordedDate stands in for a missing one in on-or-before tests only.
+            var first = retrieve.Timing == Timing.OnsetOnOrBefore ? record.OnsetFirst ?? record.RecordedFirst : record.OnsetFirst;
+            if (first is null)
             {
-                state.Find(FindingCodes.NoUsableTime, "a Condition with neither onset nor recordedDate never qualifies", record.Reference);
+                state.Find(FindingCodes.NoUsableTime, retrieve.Timing == Timing.OnsetOnOrBefore
+                    ? "a Condition with neither onset nor recordedDate never qualifies"
+                    : "a Condition without a usable onset never qualifies for an onset-before test", record.Reference);
                 return false;
             }
 
-            return retrieve.Timing == Timing.OnsetBefore
+            var onsetHolds = retrieve.Timing == Timing.OnsetBefore
                 ? from is null || first < from
                 : (to is null || first <= to) && (from is null || first >= from);
+            return onsetHolds && (retrieve.NotAbatedBefore is null || NotAbatedBefore(retrieve, record, state, scope));
         }
 
         if (record.OnsetFirst is not { } onset)
@@ -727,6 +739,33 @@ public sealed class MeasureEvaluator
             Timing.In => (from is null || onset >= from) && (to is null || end <= to),
             _ => (to is null || onset <= to) && (from is null || end >= from),
         };
+    }
+
+    private static bool NotAbatedBefore(Retrieve retrieve, PreparedRecord record, EvaluationState state, Scope scope)
+    {
+        if (Resolve(retrieve.NotAbatedBefore, state, scope) is not { } date)
+        {
+            return false;
+        }
+
+        if (record.AbatementPresent)
+        {
+            if (record.AbatementLast is not { } abated)
+            {
+                state.Find(FindingCodes.ConditionUndatedAbatement, "a Condition with an abatement that carries no date never counts as ongoing", record.Reference);
+                return false;
+            }
+
+            return abated >= date;
+        }
+
+        if (retrieve.IgnoreClinicalStatus || IsOngoing(record.Fact))
+        {
+            return true;
+        }
+
+        state.Find(FindingCodes.ConditionNoEndDate, "a Condition inactive, in remission or resolved without an abatement date does not count", record.Reference);
+        return false;
     }
 
     private static bool IsOngoing(ClinicalFact fact)

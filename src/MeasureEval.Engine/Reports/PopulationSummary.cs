@@ -1,7 +1,7 @@
 namespace MeasureEval.Engine;
 
 /// <summary>Counts of the five populations.</summary>
-public sealed class PopulationCounts
+public sealed class PopulationTally
 {
     private readonly int[] _counts = new int[PopulationKinds.All.Count];
 
@@ -43,7 +43,7 @@ public sealed class PopulationCounts
 /// </summary>
 public sealed class PopulationSummary
 {
-    private readonly Dictionary<string, SortedDictionary<string, PopulationCounts>> _strata = new(StringComparer.Ordinal);
+    private readonly Dictionary<string, SortedDictionary<string, PopulationTally>> _strata = new(StringComparer.Ordinal);
     private readonly Dictionary<PopulationKind, List<string>>? _subjects;
     private readonly SortedDictionary<string, int> _findings = new(StringComparer.Ordinal);
 
@@ -53,7 +53,7 @@ public sealed class PopulationSummary
         Period = period;
         foreach (var stratifier in measure.Stratifiers)
         {
-            _strata[stratifier.Id] = new SortedDictionary<string, PopulationCounts>(StringComparer.Ordinal);
+            _strata[stratifier.Id] = new SortedDictionary<string, PopulationTally>(StringComparer.Ordinal);
         }
 
         if (keepSubjects)
@@ -66,13 +66,13 @@ public sealed class PopulationSummary
 
     public MeasurementPeriod Period { get; }
 
-    public PopulationCounts Counts { get; } = new();
+    public PopulationTally Counts { get; } = new();
 
     /// <summary>Patients evaluated (in the initial population or not).</summary>
     public int PatientsEvaluated { get; private set; }
 
     /// <summary>Stratifier id → stratum code → counts, strata in ordinal order.</summary>
-    public IReadOnlyDictionary<string, SortedDictionary<string, PopulationCounts>> Strata => _strata;
+    public IReadOnlyDictionary<string, SortedDictionary<string, PopulationTally>> Strata => _strata;
 
     /// <summary>Patient ids per population, in evaluation order; null unless subjects were kept.</summary>
     public IReadOnlyDictionary<PopulationKind, List<string>>? Subjects => _subjects;
@@ -100,7 +100,7 @@ public sealed class PopulationSummary
             {
                 if (!strata.TryGetValue(code, out var counts))
                 {
-                    counts = new PopulationCounts();
+                    counts = new PopulationTally();
                     strata[code] = counts;
                 }
 

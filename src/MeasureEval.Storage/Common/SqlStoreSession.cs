@@ -87,9 +87,13 @@ internal sealed class SqlStoreSession : IStoreSession
         var version = current.Version + 1;
         var now = Now();
         var lastUpdated = now.ToUnixTimeMilliseconds();
-        await ExecuteAsync(StoreSql.InsertVersion, cancellationToken, resourceType, id, version, lastUpdated, true, null).ConfigureAwait(false);
-        await ExecuteAsync(StoreSql.UpsertCurrent, cancellationToken, resourceType, id, version, lastUpdated, true, null, null).ConfigureAwait(false);
-        await ExecuteAsync(StoreSql.DeleteIdentifiers, cancellationToken, resourceType, id).ConfigureAwait(false);
+        await RunAsync(
+            [
+                (StoreSql.InsertVersion, [resourceType, id, version, lastUpdated, true, null]),
+                (StoreSql.UpsertCurrent, [resourceType, id, version, lastUpdated, true, null, null]),
+                (StoreSql.DeleteIdentifiers, [resourceType, id]),
+            ],
+            cancellationToken).ConfigureAwait(false);
         if (current.IndexPatient is { } patientId)
         {
             (await EntryAsync(patientId, cancellationToken).ConfigureAwait(false)).Remove(resourceType, id);
@@ -152,18 +156,22 @@ internal sealed class SqlStoreSession : IStoreSession
         var lastUpdated = now.ToUnixTimeMilliseconds();
         var contribution = FactExtractor.TryExtract(resource, out var extracted) ? extracted : null;
 
-        await ExecuteAsync(StoreSql.InsertVersion, cancellationToken, type, id, version, lastUpdated, false, json).ConfigureAwait(false);
-        await ExecuteAsync(StoreSql.UpsertCurrent, cancellationToken, type, id, version, lastUpdated, false,
-            ResourceKeys.CompartmentPatientOf(resource), contribution?.PatientId).ConfigureAwait(false);
+        var statements = new List<(string, object?[])>(4)
+        {
+            (StoreSql.InsertVersion, [type, id, version, lastUpdated, false, json]),
+            (StoreSql.UpsertCurrent, [type, id, version, lastUpdated, false, ResourceKeys.CompartmentPatientOf(resource), contribution?.PatientId]),
+        };
         if (version > 1)
         {
-            await ExecuteAsync(StoreSql.DeleteIdentifiers, cancellationToken, type, id).ConfigureAwait(false);
+            statements.Add((StoreSql.DeleteIdentifiers, [type, id]));
         }
 
         foreach (var (system, value) in ResourceKeys.IdentifiersOf(resource))
         {
-            await ExecuteAsync(StoreSql.InsertIdentifier, cancellationToken, type, id, system, value).ConfigureAwait(false);
+            statements.Add((StoreSql.InsertIdentifier, [type, id, system, value]));
         }
+
+        await RunAsync(statements, cancellationToken).ConfigureAwait(false);
 
         if (previousIndexPatient is not null)
         {
@@ -240,18 +248,15 @@ internal sealed class SqlStoreSession : IStoreSession
 
     private async System.Threading.Tasks.Task FlushIndexAsync(CancellationToken cancellationToken)
     {
-        foreach (var (patientId, entry) in _entries)
+        if (_entries.Count == 0)
         {
-            if (entry.IsEmpty)
-            {
-                await ExecuteAsync(StoreSql.DeleteIndexEntry, cancellationToken, patientId).ConfigureAwait(false);
-            }
-            else
-            {
-                await ExecuteAsync(StoreSql.UpsertIndexEntry, cancellationToken, patientId, PatientFactsCodec.Encode(entry.ToFacts(patientId))).ConfigureAwait(false);
-            }
+            return;
         }
 
+        var statements = _entries.Select(e => e.Value.IsEmpty
+            ? (StoreSql.DeleteIndexEntry, new object?[] { e.Key })
+            : (StoreSql.UpsertIndexEntry, [e.Key, PatientFactsCodec.Encode(e.Value.ToFacts(e.Key))])).ToList();
+        await RunAsync(statements, cancellationToken).ConfigureAwait(false);
         _entries.Clear();
     }
 
@@ -260,6 +265,42 @@ internal sealed class SqlStoreSession : IStoreSession
         // Stored to the millisecond, so the body's meta.lastUpdated and the searchable column agree.
         var now = _store.TimeProvider.GetUtcNow();
         return DateTimeOffset.FromUnixTimeMilliseconds(now.ToUnixTimeMilliseconds());
+    }
+
+    /// <summary>
+    /// Runs statements that return nothing: as one batch where the provider has batches (PostgreSQL: one round trip),
+    /// otherwise one by one through the session's reused commands (SQLite: in-process calls, nothing to save).
+    /// </summary>
+    private async System.Threading.Tasks.Task RunAsync(IReadOnlyList<(string Sql, object?[] Values)> statements, CancellationToken cancellationToken)
+    {
+        if (!_connection.CanCreateBatch)
+        {
+            foreach (var (sql, values) in statements)
+            {
+                await ExecuteAsync(sql, cancellationToken, values).ConfigureAwait(false);
+            }
+
+            return;
+        }
+
+        await using var batch = _connection.CreateBatch();
+        batch.Transaction = _transaction;
+        foreach (var (sql, values) in statements)
+        {
+            var command = batch.CreateBatchCommand();
+            command.CommandText = sql;
+            for (var i = 0; i < values.Length; i++)
+            {
+                var parameter = command.CreateParameter();
+                parameter.ParameterName = "p" + i.ToString(CultureInfo.InvariantCulture);
+                parameter.Value = values[i] ?? DBNull.Value;
+                command.Parameters.Add(parameter);
+            }
+
+            batch.BatchCommands.Add(command);
+        }
+
+        await batch.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
     }
 
     private async System.Threading.Tasks.Task ExecuteAsync(string sql, CancellationToken cancellationToken, params object?[] values) =>

@@ -1,0 +1,19 @@
+using MeasureEval.Api.Analytics;
+using MeasureEval.Api.Hosting;
+using MeasureEval.Api.Logging;
+using MeasureEval.Storage;
+
+var builder = WebApplication.CreateBuilder(LoggingSetup.ExpandFlags(args));
+builder.AddMeasureEvalLogging();
+builder.Services.AddMeasureEvalStorage();
+builder.Services.AddMeasureEvalApi();
+builder.Services.AddMeasureEvalAnalytics();
+
+var app = builder.Build();
+app.UseMeasureEvalApi();
+app.MapMeasureEvalApi();
+app.MapReportEndpoints();
+app.Run();
+
+/// <summary>Entry point; public so that tests can host it with WebApplicationFactory.</summary>
+public partial class Program;

@@ -1,0 +1,56 @@
+using MeasureEval.Api.Capabilities;
+using MeasureEval.Api.Fhir;
+using MeasureEval.Core.Storage;
+using Microsoft.AspNetCore.Builder;
+using Microsoft.AspNetCore.Http;
+using Microsoft.AspNetCore.Routing;
+using Microsoft.Extensions.Primitives;
+
+namespace MeasureEval.Api.Search;
+
+/// <summary>Type-level search: <c>GET /{type}?…</c> and <c>POST /{type}/_search</c> (form body).</summary>
+public static class SearchEndpoints
+{
+    public static IEndpointRouteBuilder MapSearchEndpoints(this IEndpointRouteBuilder app)
+    {
+        var group = app.MapGroup("").WithTags("Search");
+        group.MapGet("/{type}", SearchAsync)
+            .WithName("search-type")
+            .WithSummary("Search resources of a type")
+            .WithFhir([], [200], 400, 404, 406)
+            .WithFhirInteraction(Hl7.Fhir.Model.CapabilityStatement.TypeRestfulInteraction.SearchType);
+        group.MapPost("/{type}/_search", SearchPostAsync)
+            .WithName("search-type-post")
+            .WithSummary("Search resources of a type, parameters in a form body")
+            .WithFhir([FhirFormat.FormUrlEncoded], [200], 400, 404, 406, 415);
+        return app;
+    }
+
+    public static Task<FhirResult> SearchAsync(string type, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken) =>
+        RunAsync(type, request.Query, request, store, search, cancellationToken);
+
+    public static async Task<FhirResult> SearchPostAsync(string type, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(request);
+        var parameters = request.Query.ToList();
+        if (request.HasFormContentType)
+        {
+            var form = await request.ReadFormAsync(cancellationToken);
+            parameters.AddRange(form);
+        }
+
+        return await RunAsync(type, parameters, request, store, search, cancellationToken);
+    }
+
+    private static async Task<FhirResult> RunAsync(
+        string type, IEnumerable<KeyValuePair<string, StringValues>> parameters, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken)
+    {
+        if (!search.TryParseSearch(type, parameters, FhirPrefer.Of(request).StrictHandling, out var parsed, out var issues))
+        {
+            return FhirResult.Outcome(issues);
+        }
+
+        var result = await SearchService.RunAsync(parsed!, store.SearchAsync, cancellationToken);
+        return FhirResult.Of(StatusCodes.Status200OK, SearchService.ToBundle(parsed!, result, FhirBaseUrl.Of(request)));
+    }
+}
