@@ -1,14 +1,17 @@
 using MeasureEval.Api.Hosting;
 using MeasureEval.Api.Logging;
+using MeasureEval.Api.Measures;
 using MeasureEval.Storage;
 
 var builder = WebApplication.CreateBuilder(LoggingSetup.ExpandFlags(args));
 builder.AddMeasureEvalLogging();
 builder.Services.AddMeasureEvalStorage();
 builder.Services.AddMeasureEvalApi();
+builder.Services.AddMeasureEvalMeasures();
 
 var app = builder.Build();
 app.UseMeasureEvalApi();
+app.MapMeasureEndpoints();
 app.MapMeasureEvalApi();
 app.Run();
 

@@ -671,7 +671,13 @@ public sealed class MeasureEvaluator
             case Timing.Overlaps:
                 return Overlaps(point.First, point.Last);
             case Timing.StartsIn when fact.ResourceType == "Encounter":
-                return record.PeriodStart is { } start && Inside(start.First, start.Last);
+                if (record.PeriodStart is not { } start)
+                {
+                    state.Find(FindingCodes.NoUsableTime, "an Encounter whose period has no start never starts in a window", record.Reference);
+                    return false;
+                }
+
+                return Inside(start.First, start.Last);
             case Timing.EndsIn when fact.ResourceType == "Encounter":
                 return record.PeriodEnd is { } end && Inside(end.First, end.Last);
             case Timing.In when fact.ResourceType == "Encounter":

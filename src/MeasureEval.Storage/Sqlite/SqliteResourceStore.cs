@@ -58,7 +58,7 @@ public sealed class SqliteResourceStore : SqlResourceStore
             await using var pragmas = connection.CreateCommand();
 
             // journal_mode is stored in the file; the others hold per connection.
-            pragmas.CommandText = "PRAGMA journal_mode = WAL; PRAGMA synchronous = NORMAL; PRAGMA busy_timeout = 10000;";
+            pragmas.CommandText = "PRAGMA journal_mode = WAL; PRAGMA synchronous = NORMAL; PRAGMA busy_timeout = 10000; PRAGMA cache_size = -65536;";
             await pragmas.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
             return connection;
         }
