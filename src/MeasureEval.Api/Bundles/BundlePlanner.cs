@@ -105,13 +105,14 @@ public sealed class BundlePlanner(SearchService search)
                 RequireResource(plan, target);
                 if (!string.IsNullOrEmpty(request.IfNoneExist))
                 {
-                    if (search.TryParseSearch(target.Type, QueryHelpers.ParseQuery(request.IfNoneExist), strict: true, out var condition, out var issues))
+                    var parameters = QueryHelpers.ParseQuery(request.IfNoneExist);
+                    if (parameters.Values.SelectMany(v => v).Any(v => v?.StartsWith("urn:uuid:", StringComparison.OrdinalIgnoreCase) == true))
                     {
-                        plan.Condition = condition! with { Query = condition.Query with { Count = 2, Offset = 0 } };
+                        plan.DeferredCondition = parameters;
                     }
                     else
                     {
-                        plan.Issues.AddRange(issues.Select(i => i with { Expression = path + ".ifNoneExist" }));
+                        ParseCondition(plan, parameters);
                     }
                 }
 
@@ -176,6 +177,20 @@ public sealed class BundlePlanner(SearchService search)
                 }
 
                 break;
+        }
+    }
+
+    /// <summary>Parses an ifNoneExist query (strictly: an ignored parameter would widen the match) into the plan.</summary>
+    public void ParseCondition(EntryPlan plan, IEnumerable<KeyValuePair<string, Microsoft.Extensions.Primitives.StringValues>> parameters)
+    {
+        ArgumentNullException.ThrowIfNull(plan);
+        if (search.TryParseSearch(plan.Target!.Type, parameters, strict: true, out var condition, out var issues))
+        {
+            plan.Condition = condition! with { Query = condition.Query with { Count = 2, Offset = 0 } };
+        }
+        else
+        {
+            plan.Issues.AddRange(issues.Select(i => i with { Expression = plan.Path + ".request.ifNoneExist" }));
         }
     }
 

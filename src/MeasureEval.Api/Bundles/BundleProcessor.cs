@@ -4,6 +4,7 @@ using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Search;
 using MeasureEval.Core.Storage;
 using Microsoft.AspNetCore.WebUtilities;
+using Microsoft.Extensions.Primitives;
 
 namespace MeasureEval.Api.Bundles;
 
@@ -83,32 +84,32 @@ public sealed class BundleProcessor(IResourceStore store, BundlePlanner planner,
 
         // Ids first, so that references between entries (in any direction) can be rewritten before writing.
         var references = new Dictionary<string, string>(StringComparer.Ordinal);
-        foreach (var plan in ordered.Where(p => p.Method == Bundle.HTTPVerb.POST))
-        {
-            if (plan.Condition is { } condition)
-            {
-                var existing = await SearchService.RunAsync(condition, session.SearchAsync, cancellationToken);
-                if (existing.Total > 1)
-                {
-                    plan.Issues.Add(new FhirIssue(ErrorCatalogue.MultipleMatches, $"ifNoneExist matched {existing.Total} {plan.Target!.Type} resources.", plan.Path + ".request.ifNoneExist"));
-                    continue;
-                }
-
-                plan.Matched = existing.Total == 1 ? existing.Matches[0] : null;
-            }
-
-            plan.AssignedId = plan.Matched?.Id ?? Guid.CreateVersion7(time.GetUtcNow()).ToString();
-            if (plan.Entry.FullUrl is { Length: > 0 } fullUrl)
-            {
-                references[fullUrl] = $"{plan.Target!.Type}/{plan.AssignedId}";
-            }
-        }
-
         foreach (var plan in ordered.Where(p => p.Method == Bundle.HTTPVerb.PUT))
         {
             if (plan.Entry.FullUrl is { Length: > 0 } fullUrl)
             {
                 references[fullUrl] = $"{plan.Target!.Type}/{plan.Target.Id}";
+            }
+        }
+
+        var posts = ordered.Where(p => p.Method == Bundle.HTTPVerb.POST).ToList();
+        while (posts.Count > 0)
+        {
+            var ready = posts.Where(p => p.DeferredCondition is null || !DependsOnPending(p, posts)).ToList();
+            if (ready.Count == 0)
+            {
+                foreach (var plan in posts)
+                {
+                    plan.Issues.Add(new FhirIssue(ErrorCatalogue.UnsupportedEntryMethod, "ifNoneExist conditions of these entries name each other; they cannot be resolved.", plan.Path + ".request.ifNoneExist"));
+                }
+
+                break;
+            }
+
+            foreach (var plan in ready)
+            {
+                posts.Remove(plan);
+                await AssignIdAsync(session, plan, references, cancellationToken);
             }
         }
 
@@ -154,6 +155,43 @@ public sealed class BundleProcessor(IResourceStore store, BundlePlanner planner,
             await ReadAsync(session, plan, baseUrl, cancellationToken);
         }
     }
+
+    private async System.Threading.Tasks.Task AssignIdAsync(IStoreSession session, EntryPlan plan, Dictionary<string, string> references, CancellationToken cancellationToken)
+    {
+        if (plan.DeferredCondition is { } deferred)
+        {
+            var resolved = deferred.ToDictionary(
+                kv => kv.Key,
+                kv => new StringValues([.. kv.Value.Select(v => v is not null && references.TryGetValue(v, out var id) ? id : v)]));
+            planner.ParseCondition(plan, resolved);
+        }
+
+        if (plan.Issues.Count > 0)
+        {
+            return;
+        }
+
+        if (plan.Condition is { } condition)
+        {
+            var existing = await SearchService.RunAsync(condition, session.SearchAsync, cancellationToken);
+            if (existing.Total > 1)
+            {
+                plan.Issues.Add(new FhirIssue(ErrorCatalogue.MultipleMatches, $"ifNoneExist matched {existing.Total} {plan.Target!.Type} resources.", plan.Path + ".request.ifNoneExist"));
+                return;
+            }
+
+            plan.Matched = existing.Total == 1 ? existing.Matches[0] : null;
+        }
+
+        plan.AssignedId = plan.Matched?.Id ?? Guid.CreateVersion7(time.GetUtcNow()).ToString();
+        if (plan.Entry.FullUrl is { Length: > 0 } fullUrl)
+        {
+            references[fullUrl] = $"{plan.Target!.Type}/{plan.AssignedId}";
+        }
+    }
+
+    private static bool DependsOnPending(EntryPlan plan, List<EntryPlan> pending) =>
+        plan.DeferredCondition!.Values.SelectMany(v => v).Any(v => pending.Any(other => other != plan && other.Entry.FullUrl == v));
 
     private static async System.Threading.Tasks.Task ReadAsync(IStoreSession session, EntryPlan plan, string baseUrl, CancellationToken cancellationToken)
     {

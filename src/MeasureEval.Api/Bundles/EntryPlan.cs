@@ -27,6 +27,9 @@ public sealed class EntryPlan(int index, Bundle.EntryComponent entry)
 
     public ParsedSearch? Condition { get; set; }
 
+    /// <summary>ifNoneExist parameters naming other entries by urn:uuid: parsed once those entries have ids.</summary>
+    public Dictionary<string, Microsoft.Extensions.Primitives.StringValues>? DeferredCondition { get; set; }
+
     public ParsedSearch? Search { get; set; }
 
     public List<LocatedReference> References { get; } = [];

@@ -58,7 +58,8 @@ public static class FhirJson
                 found.Add(new FhirParseIssue(FhirParseIssueKind.Syntax, "TRAILING", "", null, null, $"Unexpected content after the resource at byte offset {reader.TokenStartIndex}."));
             }
 
-            issues = found;
+            // The parser reports nested elements before their parents' later siblings: give them in reading order.
+            issues = [.. found.OrderBy(i => i.Line ?? long.MaxValue).ThenBy(i => i.Position ?? long.MaxValue)];
             return ok && found.Count == 0;
         }
         catch (JsonException ex)

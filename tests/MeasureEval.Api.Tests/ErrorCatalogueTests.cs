@@ -1,0 +1,28 @@
+using System.Reflection;
+using MeasureEval.Api.Errors;
+
+namespace MeasureEval.Api.Tests;
+
+public sealed class ErrorCatalogueTests
+{
+    [Fact]
+    public void All_EveryDeclaredCode_ListedOnceWithStableFormat()
+    {
+        var declared = typeof(ErrorCatalogue).GetFields(BindingFlags.Public | BindingFlags.Static)
+            .Where(f => f.FieldType == typeof(ErrorCode))
+            .Select(f => (ErrorCode)f.GetValue(null)!)
+            .ToList();
+
+        Assert.Equal(declared.Select(c => c.Code).Order(StringComparer.Ordinal), ErrorCatalogue.All.Select(c => c.Code).Order(StringComparer.Ordinal));
+        Assert.Equal(ErrorCatalogue.All.Count, ErrorCatalogue.All.Select(c => c.Code).Distinct(StringComparer.Ordinal).Count());
+        Assert.All(ErrorCatalogue.All, c => Assert.Matches("^MEV-[A-Z]+-[0-9]{3}$", c.Code));
+    }
+
+    [Fact]
+    public void All_ErrorStatuses_AreClientOrServerErrors()
+    {
+        Assert.All(
+            ErrorCatalogue.All.Where(c => c.Severity is Hl7.Fhir.Model.OperationOutcome.IssueSeverity.Error or Hl7.Fhir.Model.OperationOutcome.IssueSeverity.Fatal),
+            c => Assert.InRange(c.HttpStatus, 400, 599));
+    }
+}

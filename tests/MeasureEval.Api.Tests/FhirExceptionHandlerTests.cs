@@ -1,0 +1,60 @@
+using System.Net;
+using Hl7.Fhir.Model;
+using MeasureEval.Api.Tests.Support;
+using MeasureEval.Core.Index;
+using MeasureEval.Core.Storage;
+using Microsoft.AspNetCore.TestHost;
+using Microsoft.Extensions.DependencyInjection;
+using static MeasureEval.Api.Tests.Support.Fhir;
+
+namespace MeasureEval.Api.Tests;
+
+public sealed class FhirExceptionHandlerTests(ApiFactory factory) : IClassFixture<ApiFactory>
+{
+    [Fact]
+    public async System.Threading.Tasks.Task TryHandle_StoreThrows_Returns500OperationOutcomeWithoutDetails()
+    {
+        using var failing = factory.WithWebHostBuilder(builder => builder.ConfigureTestServices(services =>
+        {
+            var real = services.Single(d => d.ServiceType == typeof(IResourceStore));
+            services.Remove(real);
+            services.AddSingleton<IResourceStore>(sp => new ReadFailsStore((IResourceStore)real.ImplementationFactory!(sp)));
+        }));
+        var client = failing.CreateClient();
+
+        var response = await client.GetAsync("/Patient/secret-mrn-123");
+
+        Assert.Equal(HttpStatusCode.InternalServerError, response.StatusCode);
+        var outcome = await ReadAsync<OperationOutcome>(response);
+        var issue = outcome.Issue.Single();
+        Assert.Equal(OperationOutcome.IssueType.Exception, issue.Code);
+        Assert.Equal(["MEV-SRV-001"], Codes(outcome));
+        Assert.DoesNotContain("disk on fire", issue.Diagnostics, StringComparison.Ordinal);
+    }
+
+    /// <summary>The real store, except that reads fail as a broken disk would.</summary>
+    private sealed class ReadFailsStore(IResourceStore inner) : IResourceStore
+    {
+        public System.Threading.Tasks.Task InitializeAsync(CancellationToken cancellationToken) => inner.InitializeAsync(cancellationToken);
+
+        public System.Threading.Tasks.Task<bool> IsReadyAsync(CancellationToken cancellationToken) => inner.IsReadyAsync(cancellationToken);
+
+        public System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, CancellationToken cancellationToken) =>
+            throw new IOException("disk on fire");
+
+        public System.Threading.Tasks.Task<StoredResource?> ReadVersionAsync(string resourceType, string id, int versionId, CancellationToken cancellationToken) =>
+            inner.ReadVersionAsync(resourceType, id, versionId, cancellationToken);
+
+        public System.Threading.Tasks.Task<IReadOnlyList<StoredResource>> HistoryAsync(string resourceType, string id, CancellationToken cancellationToken) =>
+            inner.HistoryAsync(resourceType, id, cancellationToken);
+
+        public System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken) => inner.SearchAsync(query, cancellationToken);
+
+        public System.Threading.Tasks.Task<IStoreSession> BeginWriteAsync(CancellationToken cancellationToken) => inner.BeginWriteAsync(cancellationToken);
+
+        public System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, CancellationToken cancellationToken) => inner.GetPatientFactsAsync(patientId, cancellationToken);
+
+        public IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, CancellationToken cancellationToken) =>
+            inner.StreamPatientFactsAsync(patientIds, cancellationToken);
+    }
+}
