@@ -1,3 +1,4 @@
+using MeasureEval.Api.Analytics;
 using MeasureEval.Api.Hosting;
 using MeasureEval.Api.Logging;
 using MeasureEval.Api.Measures;
@@ -8,11 +9,13 @@ builder.AddMeasureEvalLogging();
 builder.Services.AddMeasureEvalStorage();
 builder.Services.AddMeasureEvalApi();
 builder.Services.AddMeasureEvalMeasures();
+builder.Services.AddMeasureEvalAnalytics();
 
 var app = builder.Build();
 app.UseMeasureEvalApi();
 app.MapMeasureEndpoints();
 app.MapMeasureEvalApi();
+app.MapReportEndpoints();
 app.Run();
 
 /// <summary>Entry point; public so that tests can host it with WebApplicationFactory.</summary>

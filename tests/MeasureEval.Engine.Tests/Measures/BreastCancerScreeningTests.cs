@@ -58,7 +58,7 @@ public sealed class BreastCancerScreeningTests
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
-        Assert.Equal(new PopulationCounts(ip, den, dex, dexcep, numer), result.Populations);
+        Assert.Equal(new CaseCounts(ip, den, dex, dexcep, numer), result.Populations);
     }
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
@@ -77,7 +77,7 @@ public sealed class BreastCancerScreeningTests
     [InlineData("age-42-on-period-end", "age-band", "42-49")] // 42
     [InlineData("age-74-on-period-end", "age-band", "65-74")] // 74
     [InlineData("mammogram-in-period", "age-band", "50-64")] // 56
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

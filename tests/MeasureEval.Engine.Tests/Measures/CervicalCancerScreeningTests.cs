@@ -50,11 +50,16 @@ public sealed class CervicalCancerScreeningTests
     [InlineData("hysterectomy-unconfirmed", 1, 1, 0, 0, 0)] // verificationStatus must be confirmed or absent
     [InlineData("hysterectomy-recorded-date-only", 1, 1, 1, 0, 0)] // recordedDate stands in for onset in an 'on or before' test
     [InlineData("palliative-service-request", 1, 1, 1, 0, 0)] // hospice/palliative ServiceRequest, active order
+    // Every listed HPV code, one case each
+    [InlineData("hpv-code-30167-1", 1, 1, 0, 0, 1)] // HPV LOINC 30167-1 listed
+    [InlineData("hpv-code-59420-0", 1, 1, 0, 0, 1)] // HPV LOINC 59420-0 listed
+    [InlineData("hpv-code-71431-1", 1, 1, 0, 0, 1)] // HPV LOINC 71431-1 listed
+    [InlineData("hpv-code-77379-6", 1, 1, 0, 0, 1)] // HPV LOINC 77379-6 listed
     public void Evaluate_Case(string caseFile, int ip, int den, int dex, int dexcep, int numer, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
-        Assert.Equal(new PopulationCounts(ip, den, dex, dexcep, numer), result.Populations);
+        Assert.Equal(new CaseCounts(ip, den, dex, dexcep, numer), result.Populations);
     }
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
@@ -73,7 +78,7 @@ public sealed class CervicalCancerScreeningTests
     [InlineData("age-24-on-period-end", "age-band", "24-29")] // 24
     [InlineData("age-64-on-period-end", "age-band", "50-64")] // 64
     [InlineData("cytology-in-period", "age-band", "30-49")] // 46
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

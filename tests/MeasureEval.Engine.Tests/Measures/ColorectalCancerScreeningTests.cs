@@ -33,10 +33,14 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("encounter-start-offset-plus14", 1, 1, 0, 0, 0)] // stated date 2026-01-01 in its own offset (in UTC it would be 2025-12-31)
     [InlineData("encounter-start-offset-minus05", 0, 0, 0, 0, 0)] // stated date 2025-12-31 (in UTC it would be 2026-01-01)
     [InlineData("no-encounter", 0, 0, 0, 0, 0)] // no qualifying encounter
+    [InlineData("encounter-without-start", 0, 0, 0, 0, 0)] // period without a start: no usable time for 'starts during', reported
+    [InlineData("encounter-start-partial-month", 1, 1, 0, 0, 0)] // partial start 2026-03 lies wholly inside MP
     // Deceased (our rule): before periodStart -> not in IP; during MP -> denominator exclusion
     [InlineData("died-before-period", 0, 0, 0, 0, 0)] // died the day before periodStart
     [InlineData("died-on-period-start", 1, 1, 1, 0, 0)] // died during MP: excluded; numerator not evaluated although a colonoscopy is present
     [InlineData("deceased-boolean", 0, 0, 0, 0, 0)] // deceasedBoolean true without a date counts as before periodStart
+    [InlineData("died-partial-year-before-period", 0, 0, 0, 0, 0)] // died in 2025: wholly before periodStart
+    [InlineData("died-partial-month-during-period", 1, 1, 1, 0, 0)] // died in 2026-05: during MP
     // Numerator: colonoscopy (SNOMED CT 73761001, 444783004) during MP or the 9 years before, i.e. from 2017-01-01 (USPSTF 2021, Table 1: every 10 years)
     [InlineData("colonoscopy-first-day-of-window", 1, 1, 0, 0, 1)] // periodStart - 9 years = 2017-01-01, inclusive
     [InlineData("colonoscopy-day-before-window", 1, 1, 0, 0, 0)] // one day before the window
@@ -109,6 +113,8 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("hospice-discharge", 1, 1, 1, 0, 0)] // discharged to hospice, period ends in MP; numerator not evaluated
     [InlineData("hospice-discharge-ended-before-period", 1, 1, 0, 0, 0)] // period ended before MP
     [InlineData("hospice-discharge-ends-after-period", 1, 1, 0, 0, 0)] // period must end in MP
+    [InlineData("hospice-discharge-ends-stated-date-in-period", 1, 1, 1, 0, 0)] // period end's stated date 2026-12-31 is in MP (UTC would be 2027-01-01)
+    [InlineData("hospice-discharge-ends-stated-date-after-period", 1, 1, 0, 0, 0)] // period end's stated date 2027-01-01 is after MP (UTC would be 2026-12-31)
     [InlineData("hospice-discharge-cancelled", 1, 1, 0, 0, 0)] // a cancelled encounter does not count
     [InlineData("hospice-discharge-other-disposition", 1, 1, 0, 0, 0)] // only disposition hosp
     [InlineData("hospice-encounter-type", 1, 1, 1, 0, 0)] // Encounter type 385763009 (hospice care) overlapping MP
@@ -123,6 +129,14 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("palliative-condition-abated-before-period", 1, 1, 0, 0, 0)] // abated the day before MP: no overlap
     [InlineData("palliative-condition-abated-on-period-start", 1, 1, 1, 0, 0)] // abatement >= window start: overlaps
     [InlineData("palliative-condition-inactive-no-abatement", 1, 1, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)
+    // Every listed code, one case each (value sets as the spec lists them)
+    [InlineData("fobt-code-57905-2", 1, 1, 0, 0, 1)] // FOBT LOINC 57905-2 listed
+    [InlineData("fobt-code-56490-6", 1, 1, 0, 0, 1)] // FOBT LOINC 56490-6 listed
+    [InlineData("fobt-code-56491-4", 1, 1, 0, 0, 1)] // FOBT LOINC 56491-4 listed
+    [InlineData("fobt-code-14563-1", 1, 1, 0, 0, 1)] // FOBT LOINC 14563-1 listed
+    [InlineData("fobt-code-14564-9", 1, 1, 0, 0, 1)] // FOBT LOINC 14564-9 listed
+    [InlineData("fobt-code-14565-6", 1, 1, 0, 0, 1)] // FOBT LOINC 14565-6 listed
+    [InlineData("cancer-snomed-rectosigmoid", 1, 1, 1, 0, 0)] // SNOMED CT 363414004
     // Stratifier cases: payer (a Coverage counts if active, beneficiary the patient, period overlapping MP - none: all of MP; several: active on periodEnd, then lowest order, then lowest id: our rule; Patient/RelatedPerson payor = self-pay; none = none) and primary-care panel (first generalPractitioner; none = unattributed)
     [InlineData("age-49-band-edge", 1, 1, 0, 0, 0)] // 49 on periodEnd
     [InlineData("age-50-band-edge", 1, 1, 0, 0, 0)] // 50 on periodEnd
@@ -134,6 +148,7 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("payer-self-pay-related-person", 1, 1, 0, 0, 0)] // payor is a RelatedPerson
     [InlineData("payer-cancelled", 1, 1, 0, 0, 0)] // status must be active
     [InlineData("payer-period-before-period", 1, 1, 0, 0, 0)] // period does not overlap MP
+    [InlineData("payer-ended-mid-period", 1, 1, 0, 0, 0)] // overlaps MP though not active on periodEnd
     [InlineData("payer-lowest-order", 1, 1, 0, 0, 0)] // both active on periodEnd: lowest order
     [InlineData("payer-active-on-period-end-first", 1, 1, 0, 0, 0)] // the Coverage active on periodEnd wins over a lower order
     [InlineData("payer-lowest-id", 1, 1, 0, 0, 0)] // same order: lowest id (cov-a)
@@ -142,12 +157,13 @@ public sealed class ColorectalCancerScreeningTests
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
-        Assert.Equal(new PopulationCounts(ip, den, dex, dexcep, numer), result.Populations);
+        Assert.Equal(new CaseCounts(ip, den, dex, dexcep, numer), result.Populations);
     }
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
     [InlineData("birthdate-missing", FindingCodes.MissingBirthDate, null)]
+    [InlineData("encounter-without-start", FindingCodes.NoUsableTime, "Encounter/enc-1")]
     [InlineData("colonoscopy-performed-string", FindingCodes.NoUsableTime, "Procedure/proc-1")]
     [InlineData("fit-issued-only", FindingCodes.NoUsableTime, "Observation/obs-1")]
     [InlineData("fit-effective-timing", FindingCodes.NoUsableTime, "Observation/obs-1")]
@@ -179,11 +195,12 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("payer-self-pay-related-person", "payer", "self-pay")] // payor is a RelatedPerson
     [InlineData("payer-cancelled", "payer", "none")] // no Coverage counts
     [InlineData("payer-period-before-period", "payer", "none")] // no Coverage counts
+    [InlineData("payer-ended-mid-period", "payer", "Organization/cedar-valley-health-plan")] // the only Coverage that counts
     [InlineData("payer-lowest-order", "payer", "Organization/pinecrest-mutual")] // order 1
     [InlineData("payer-active-on-period-end-first", "payer", "Organization/pinecrest-mutual")] // active on periodEnd
     [InlineData("payer-lowest-id", "payer", "Organization/cedar-valley-health-plan")] // cov-a < cov-b
     [InlineData("panel-first-practitioner", "panel", "Practitioner/dr-amara-osei")] // the first reference
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

@@ -30,6 +30,7 @@ public sealed class DepressionScreeningTests
     // Follow-up for a positive most recent screen on D, D+1 or D+2 (stated dates, may fall after periodEnd: our rule): ServiceRequest or completed Procedure 183524004, 308477009, 385724002, 410223002 (SNOMED CT, from memory: verify)
     [InlineData("follow-up-same-day-referral", 1, 1, 0, 0, 1)] // ServiceRequest on D
     [InlineData("follow-up-next-day-procedure", 1, 1, 0, 0, 1)] // completed Procedure on D+1
+    [InlineData("follow-up-earlier-same-day", 1, 1, 0, 0, 1)] // a follow-up on D counts by stated date, even before the screen's time
     [InlineData("follow-up-day-2", 1, 1, 0, 0, 1)] // D+2 counts
     [InlineData("follow-up-day-3", 1, 1, 0, 0, 0)] // D+3 does not count
     [InlineData("follow-up-day-before", 1, 1, 0, 0, 0)] // D-1 does not count
@@ -70,6 +71,7 @@ public sealed class DepressionScreeningTests
     // Exception: no screening counts in MP, and an Observation of a screening code in MP has status final and dataAbsentReason asked-declined
     [InlineData("declined-no-screening", 1, 1, 0, 1, 0)] // declined, no screening
     [InlineData("declined-phq2", 1, 1, 0, 1, 0)] // PHQ-2 code declined
+    [InlineData("declined-adolescent-code", 1, 1, 0, 1, 0)] // adolescent PHQ-9 code declined
     [InlineData("declined-on-period-end", 1, 1, 0, 1, 0)] // periodEnd inclusive
     [InlineData("declined-before-period", 1, 1, 0, 0, 0)] // must be in MP
     [InlineData("declined-preliminary", 1, 1, 0, 0, 0)] // must be final
@@ -83,7 +85,7 @@ public sealed class DepressionScreeningTests
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
-        Assert.Equal(new PopulationCounts(ip, den, dex, dexcep, numer), result.Populations);
+        Assert.Equal(new CaseCounts(ip, den, dex, dexcep, numer), result.Populations);
     }
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
@@ -104,7 +106,7 @@ public sealed class DepressionScreeningTests
     [InlineData("phq9-negative", "age-band", "18-64")] // 56
     [InlineData("age-17-at-start-18-at-end", "age-band", "18-64")] // age band at periodEnd (18), not periodStart (17)
     [InlineData("age-65-on-period-end", "age-band", "65+")] // 65
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

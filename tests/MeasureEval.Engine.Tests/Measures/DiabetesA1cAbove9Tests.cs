@@ -23,6 +23,8 @@ public sealed class DiabetesA1cAbove9Tests
     [InlineData("diabetes-e11-parent-code", 1, 1, 0, 0, 1)] // E11.* includes E11
     [InlineData("diabetes-e11-65", 1, 1, 0, 0, 1)] // E11.* includes E11.65
     [InlineData("diabetes-snomed", 1, 1, 0, 0, 1)] // SNOMED CT 44054006
+    [InlineData("diabetes-snomed-type-1", 1, 1, 0, 0, 1)] // SNOMED CT 46635009
+    [InlineData("diabetes-snomed-type-2", 1, 1, 0, 0, 1)] // SNOMED CT 73211009
     [InlineData("diabetes-gestational-o24", 0, 0, 0, 0, 0)] // no O24.* code qualifies
     [InlineData("no-diabetes", 0, 0, 0, 0, 0)] // no diabetes
     [InlineData("diabetes-abated-before-period", 0, 0, 0, 0, 0)] // abatement before periodStart: no overlap
@@ -37,6 +39,7 @@ public sealed class DiabetesA1cAbove9Tests
     [InlineData("diabetes-onset-on-period-end", 1, 1, 0, 0, 1)] // onset on periodEnd overlaps
     [InlineData("diabetes-onset-after-period", 0, 0, 0, 0, 0)] // onset after periodEnd
     [InlineData("diabetes-onset-partial-month", 1, 1, 0, 0, 1)] // onset uses the first day, 2026-12-01
+    [InlineData("diabetes-without-onset", 0, 0, 0, 0, 0)] // no onset (and no recordedDate): no usable time, never qualifies, reported
     [InlineData("diabetes-clinical-status-absent", 1, 1, 0, 0, 1)] // absent clinicalStatus without abatement counts as ongoing
     [InlineData("diabetes-inactive-no-abatement", 0, 0, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)
     [InlineData("diabetes-resolved-no-abatement", 0, 0, 0, 0, 0)] // resolved without abatement does not count, reported
@@ -70,11 +73,12 @@ public sealed class DiabetesA1cAbove9Tests
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
-        Assert.Equal(new PopulationCounts(ip, den, dex, dexcep, numer), result.Populations);
+        Assert.Equal(new CaseCounts(ip, den, dex, dexcep, numer), result.Populations);
     }
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
+    [InlineData("diabetes-without-onset", FindingCodes.NoUsableTime, "Condition/cond-1")]
     [InlineData("diabetes-inactive-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("diabetes-resolved-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("a1c-unconvertible-unit", FindingCodes.UnconvertibleUnit, "Observation/obs-1")]

@@ -23,6 +23,8 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("diabetes-e11-parent-code", 1, 1, 0, 0, 0)] // E11.* includes E11
     [InlineData("diabetes-e11-65", 1, 1, 0, 0, 0)] // E11.* includes E11.65
     [InlineData("diabetes-snomed", 1, 1, 0, 0, 0)] // SNOMED CT 44054006
+    [InlineData("diabetes-snomed-type-1", 1, 1, 0, 0, 0)] // SNOMED CT 46635009
+    [InlineData("diabetes-snomed-type-2", 1, 1, 0, 0, 0)] // SNOMED CT 73211009
     [InlineData("diabetes-gestational-o24", 0, 0, 0, 0, 0)] // no O24.* code qualifies
     [InlineData("no-diabetes", 0, 0, 0, 0, 0)] // no diabetes
     [InlineData("diabetes-abated-before-period", 0, 0, 0, 0, 0)] // abatement before periodStart: no overlap
@@ -37,6 +39,7 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("diabetes-onset-on-period-end", 1, 1, 0, 0, 0)] // onset on periodEnd overlaps
     [InlineData("diabetes-onset-after-period", 0, 0, 0, 0, 0)] // onset after periodEnd
     [InlineData("diabetes-onset-partial-month", 1, 1, 0, 0, 0)] // onset uses the first day, 2026-12-01
+    [InlineData("diabetes-without-onset", 0, 0, 0, 0, 0)] // no onset (and no recordedDate): no usable time, never qualifies, reported
     [InlineData("diabetes-clinical-status-absent", 1, 1, 0, 0, 0)] // absent clinicalStatus without abatement counts as ongoing
     [InlineData("diabetes-inactive-no-abatement", 0, 0, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)
     [InlineData("diabetes-resolved-no-abatement", 0, 0, 0, 0, 0)] // resolved without abatement does not count, reported
@@ -49,6 +52,8 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("a1c-8-0", 1, 1, 0, 0, 0)] // 8.0 is not < 8
     [InlineData("a1c-7-99", 1, 1, 0, 0, 1)] // 7.99 < 8
     [InlineData("a1c-alternate-code", 1, 1, 0, 0, 1)] // 17856-6 listed
+    [InlineData("a1c-code-4549-2", 1, 1, 0, 0, 1)] // 4549-2 listed
+    [InlineData("a1c-code-17855-8", 1, 1, 0, 0, 1)] // 17855-8 listed
     [InlineData("a1c-unit-text-not-used", 1, 1, 0, 0, 1)] // converted by Quantity.code (%), not the display unit
     [InlineData("a1c-partial-month-ranks-first-day", 1, 1, 0, 0, 1)] // ranking uses a partial date's first day: 2026-09 ranks as 09-01, so 09-15 (7.0) is most recent
     [InlineData("a1c-ifcc-63", 1, 1, 0, 0, 1)] // 63 mmol/mol -> 7.915 % (spec check value, master equation)
@@ -59,6 +64,8 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("a1c-comparator-at-most-8", 1, 1, 0, 0, 0)] // <=8.0 % allows 8.0
     [InlineData("a1c-comparator-above-7", 1, 1, 0, 0, 0)] // >7.0 % allows 9
     [InlineData("a1c-none", 1, 1, 0, 0, 0)] // no result: not in the numerator
+    [InlineData("a1c-partial-month-in-period", 1, 1, 0, 0, 1)] // 2026-12 lies wholly inside MP
+    [InlineData("a1c-amended", 1, 1, 0, 0, 1)] // amended counts
     [InlineData("a1c-before-period", 1, 1, 0, 0, 0)] // the result must be in MP
     [InlineData("a1c-most-recent-high", 1, 1, 0, 0, 0)] // most recent (8.5) decides
     [InlineData("a1c-most-recent-low", 1, 1, 0, 0, 1)] // most recent (7.0) decides
@@ -78,11 +85,12 @@ public sealed class DiabetesA1cBelow8Tests
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
-        Assert.Equal(new PopulationCounts(ip, den, dex, dexcep, numer), result.Populations);
+        Assert.Equal(new CaseCounts(ip, den, dex, dexcep, numer), result.Populations);
     }
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
+    [InlineData("diabetes-without-onset", FindingCodes.NoUsableTime, "Condition/cond-1")]
     [InlineData("diabetes-inactive-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("diabetes-resolved-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("a1c-unconvertible-unit", FindingCodes.UnconvertibleUnit, "Observation/obs-1")]
@@ -100,7 +108,7 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("age-18-on-period-end", "age-band", "18-44")] // 18
     [InlineData("age-75-on-period-end", "age-band", "65-75")] // 75
     [InlineData("a1c-7-9", "age-band", "45-64")] // 56
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

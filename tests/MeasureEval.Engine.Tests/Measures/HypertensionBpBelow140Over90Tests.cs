@@ -22,6 +22,11 @@ public sealed class HypertensionBpBelow140Over90Tests
     [InlineData("hypertension-onset-partial-july", 0, 0, 0, 0, 0)] // first day 2026-07-01 is after 2026-06-30
     [InlineData("hypertension-onset-rolled-month-end", 1, 1, 0, 0, 0, "2025-08-31", "2026-08-30")] // MP from 2025-08-31: + 6 months = 2026-02-31 -> 2026-03-01, - 1 day = 2026-02-28 (calendar arithmetic, missing day rolls to the next 1st)
     [InlineData("hypertension-onset-after-rolled-month-end", 0, 0, 0, 0, 0, "2025-08-31", "2026-08-30")] // MP from 2025-08-31: onset 2026-03-01 is after 2026-02-28
+    [InlineData("hypertension-onset-stated-date-june-30", 1, 1, 0, 0, 0)] // stated date 2026-06-30 (UTC would be 07-01)
+    [InlineData("hypertension-onset-stated-date-july-01", 0, 0, 0, 0, 0)] // stated date 2026-07-01 (UTC would be 06-30)
+    [InlineData("hypertension-onset-period-start", 1, 1, 0, 0, 0)] // onsetPeriod.start 2026-06-30
+    [InlineData("hypertension-abatement-partial-year", 0, 0, 0, 0, 0)] // abatement's last day 2025-12-31 is before periodStart
+    [InlineData("hypertension-abatement-partial-month", 1, 1, 0, 0, 0)] // abatement's last day 2026-01-31 is not before periodStart
     [InlineData("hypertension-abated-before-period", 0, 0, 0, 0, 0)] // abated before periodStart
     [InlineData("hypertension-abated-on-period-start", 1, 1, 0, 0, 0)] // abated on periodStart: not before it
     [InlineData("hypertension-recorded-date-only", 1, 1, 0, 0, 0)] // recordedDate stands in for onset in an 'on or before' test
@@ -40,6 +45,9 @@ public sealed class HypertensionBpBelow140Over90Tests
     [InlineData("panel-in-kilopascal", 1, 1, 0, 0, 1)] // UCUM: 18 kPa = 135.0 mm[Hg], 11 kPa = 82.5 mm[Hg] (1 mm[Hg] = 133.322 Pa, UCUM table)
     [InlineData("panel-in-kilopascal-high", 1, 1, 0, 0, 0)] // UCUM: 19 kPa = 142.5 mm[Hg], not < 140
     [InlineData("two-readings-same-day-135-85", 1, 1, 0, 0, 1)] // 150/85 and 135/95 -> representative 135/85 -> controlled (spec check value)
+    [InlineData("panel-and-separate-diastolic-same-day", 1, 1, 0, 0, 0)] // lowest of the day: 150/80, systolic not < 140
+    [InlineData("panel-and-separate-systolic-same-day", 1, 1, 0, 0, 1)] // lowest of the day: 135/85, from different readings
+    [InlineData("later-panel-diastolic-absent", 1, 1, 0, 0, 0)] // 2026-11-01 has no diastolic value: 2026-09-01 (150/95) is representative
     [InlineData("later-systolic-only-ignored-controlled", 1, 1, 0, 0, 1)] // 2026-11-01 has no diastolic: the 2026-09-01 reading is representative
     [InlineData("later-systolic-only-ignored-uncontrolled", 1, 1, 0, 0, 0)] // the later systolic-only date is ignored; 150/95
     [InlineData("most-recent-uncontrolled", 1, 1, 0, 0, 0)] // the most recent date decides
@@ -77,7 +85,7 @@ public sealed class HypertensionBpBelow140Over90Tests
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
-        Assert.Equal(new PopulationCounts(ip, den, dex, dexcep, numer), result.Populations);
+        Assert.Equal(new CaseCounts(ip, den, dex, dexcep, numer), result.Populations);
     }
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
@@ -98,7 +106,7 @@ public sealed class HypertensionBpBelow140Over90Tests
     [InlineData("age-18-on-period-end", "age-band", "18-44")] // 18
     [InlineData("age-85-on-period-end", "age-band", "65-85")] // 85
     [InlineData("panel-130-80", "age-band", "45-64")] // 56
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

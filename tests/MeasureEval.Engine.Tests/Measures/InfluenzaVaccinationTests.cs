@@ -55,11 +55,39 @@ public sealed class InfluenzaVaccinationTests
     [InlineData("age-18-on-period-end", 1, 1, 0, 0, 0)] // 18 on periodEnd
     [InlineData("age-64-on-period-end", 1, 1, 0, 0, 0)] // 64 on periodEnd
     [InlineData("age-65-on-period-end", 1, 1, 0, 0, 0)] // 65 on periodEnd
+    // Every CVX code of the influenza group, one case each (CDC CVX table)
+    [InlineData("vaccine-cvx-15", 1, 1, 0, 0, 1)] // CVX 15 in the group
+    [InlineData("vaccine-cvx-16", 1, 1, 0, 0, 1)] // CVX 16 in the group
+    [InlineData("vaccine-cvx-111", 1, 1, 0, 0, 1)] // CVX 111 in the group
+    [InlineData("vaccine-cvx-135", 1, 1, 0, 0, 1)] // CVX 135 in the group
+    [InlineData("vaccine-cvx-140", 1, 1, 0, 0, 1)] // CVX 140 in the group
+    [InlineData("vaccine-cvx-144", 1, 1, 0, 0, 1)] // CVX 144 in the group
+    [InlineData("vaccine-cvx-149", 1, 1, 0, 0, 1)] // CVX 149 in the group
+    [InlineData("vaccine-cvx-150", 1, 1, 0, 0, 1)] // CVX 150 in the group
+    [InlineData("vaccine-cvx-151", 1, 1, 0, 0, 1)] // CVX 151 in the group
+    [InlineData("vaccine-cvx-153", 1, 1, 0, 0, 1)] // CVX 153 in the group
+    [InlineData("vaccine-cvx-155", 1, 1, 0, 0, 1)] // CVX 155 in the group
+    [InlineData("vaccine-cvx-158", 1, 1, 0, 0, 1)] // CVX 158 in the group
+    [InlineData("vaccine-cvx-161", 1, 1, 0, 0, 1)] // CVX 161 in the group
+    [InlineData("vaccine-cvx-166", 1, 1, 0, 0, 1)] // CVX 166 in the group
+    [InlineData("vaccine-cvx-168", 1, 1, 0, 0, 1)] // CVX 168 in the group
+    [InlineData("vaccine-cvx-171", 1, 1, 0, 0, 1)] // CVX 171 in the group
+    [InlineData("vaccine-cvx-185", 1, 1, 0, 0, 1)] // CVX 185 in the group
+    [InlineData("vaccine-cvx-186", 1, 1, 0, 0, 1)] // CVX 186 in the group
+    [InlineData("vaccine-cvx-194", 1, 1, 0, 0, 1)] // CVX 194 in the group
+    [InlineData("vaccine-cvx-197", 1, 1, 0, 0, 1)] // CVX 197 in the group
+    [InlineData("vaccine-cvx-200", 1, 1, 0, 0, 1)] // CVX 200 in the group
+    [InlineData("vaccine-cvx-201", 1, 1, 0, 0, 1)] // CVX 201 in the group
+    [InlineData("vaccine-cvx-202", 1, 1, 0, 0, 1)] // CVX 202 in the group
+    [InlineData("vaccine-cvx-205", 1, 1, 0, 0, 1)] // CVX 205 in the group
+    [InlineData("vaccine-cvx-231", 1, 1, 0, 0, 1)] // CVX 231 in the group
+    [InlineData("vaccine-cvx-320", 1, 1, 0, 0, 1)] // CVX 320 in the group
+    [InlineData("vaccine-cvx-331", 1, 1, 0, 0, 1)] // CVX 331 in the group
     public void Evaluate_Case(string caseFile, int ip, int den, int dex, int dexcep, int numer, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 
-        Assert.Equal(new PopulationCounts(ip, den, dex, dexcep, numer), result.Populations);
+        Assert.Equal(new CaseCounts(ip, den, dex, dexcep, numer), result.Populations);
     }
 
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
@@ -81,7 +109,7 @@ public sealed class InfluenzaVaccinationTests
     [InlineData("age-18-on-period-end", "age-band", "18-64")] // 18
     [InlineData("age-64-on-period-end", "age-band", "18-64")] // 64
     [InlineData("age-65-on-period-end", "age-band", "65+")] // 65
-    public void Evaluate_Stratum(string caseFile, string stratifier, string expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
+    public void Evaluate_Stratum(string caseFile, string stratifier, string? expected, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);
 

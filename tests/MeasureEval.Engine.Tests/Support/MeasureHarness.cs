@@ -6,9 +6,9 @@ using MeasureEval.Core.Index;
 namespace MeasureEval.Engine.Tests.Support;
 
 /// <summary>Population membership of one patient as 0/1 counts, so that a failure shows all five at once.</summary>
-public sealed record PopulationCounts(int InitialPopulation, int Denominator, int DenominatorExclusion, int DenominatorException, int Numerator);
+public sealed record CaseCounts(int InitialPopulation, int Denominator, int DenominatorExclusion, int DenominatorException, int Numerator);
 
-public sealed record CaseResult(PopulationCounts Populations, IReadOnlyList<DataQualityFinding> Findings, IReadOnlyList<CountDetail> Counts, IReadOnlyDictionary<string, string> Strata);
+public sealed record CaseResult(CaseCounts Populations, IReadOnlyList<DataQualityFinding> Findings, IReadOnlyList<CountDetail> Counts, IReadOnlyDictionary<string, string> Strata);
 
 /// <summary>
 /// Evaluates one measure for the single patient of a case fixture
@@ -38,7 +38,7 @@ public static class MeasureHarness
         var result = new MeasureEvaluator(repository, new BundleRecords(resources)).Evaluate(measure, patient, period);
 
         return new CaseResult(
-            new PopulationCounts(
+            new CaseCounts(
                 Count(result.InitialPopulation),
                 Count(result.Denominator),
                 Count(result.DenominatorExclusion),

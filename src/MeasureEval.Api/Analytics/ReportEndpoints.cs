@@ -1,0 +1,165 @@
+using System.Text;
+using System.Text.Json;
+using MeasureEval.Analytics.Population;
+using MeasureEval.Analytics.Reports;
+using MeasureEval.Api.Errors;
+using MeasureEval.Api.Fhir;
+using MeasureEval.Engine;
+using Microsoft.AspNetCore.Builder;
+using Microsoft.AspNetCore.Http;
+using Microsoft.AspNetCore.Http.HttpResults;
+using Microsoft.AspNetCore.Routing;
+
+namespace MeasureEval.Api.Analytics;
+
+/// <summary>
+/// Report pages for quality analysts: an index of every measure's rate, one measure's report (HTML, JSON or CSV)
+/// and its gap list. Bad parameters come back as an OperationOutcome naming each one.
+/// </summary>
+public static class ReportEndpoints
+{
+    public const string HtmlType = "text/html; charset=utf-8";
+    public const string CsvType = "text/csv; charset=utf-8";
+    public const string JsonType = "application/json; charset=utf-8";
+
+    public static IEndpointRouteBuilder MapReportEndpoints(this IEndpointRouteBuilder app)
+    {
+        ArgumentNullException.ThrowIfNull(app);
+        var group = app.MapGroup("/reports").WithTags("Reports");
+        group.MapGet("/", GetIndexAsync).WithName("GetReportIndex").WithSummary("Every measure's rate with its 95 % interval over one period (HTML or JSON).");
+        group.MapGet("/measures/{id}", GetMeasureReportAsync).WithName("GetMeasureReport")
+            .WithSummary("One measure: rate and strata with intervals, panel funnel and gap-to-target, trend (HTML, JSON or CSV).");
+        group.MapGet("/measures/{id}/gaps", GetGapsAsync).WithName("GetMeasureGaps")
+            .WithSummary("Patients with an open gap for one measure, optionally one panel (CSV or JSON).");
+        return app;
+    }
+
+    public static async Task<Results<ContentHttpResult, FhirResult>> GetIndexAsync(
+        HttpRequest request, MeasureAnalytics analytics, TimeProvider time, CancellationToken cancellationToken)
+    {
+        if (!ReportQuery.TryParse(request.Query, time, out var query, out var issues) || query.Format == ReportFormat.Csv)
+        {
+            return FhirResult.Outcome(issues.Count > 0 ? issues : [new FhirIssue(ReportErrorCodes.InvalidParameter, "the index is served as html or json.", "format")]);
+        }
+
+        var summaries = await analytics.SummariesAsync(query.Period, cancellationToken).ConfigureAwait(false);
+        return query.Format == ReportFormat.Json
+            ? TypedResults.Content(ReportJson.Serialize(summaries), JsonType)
+            : TypedResults.Content(ReportIndexPage.Render(query.Period, summaries, id => $"/reports/measures/{Uri.EscapeDataString(id)}{query.ToQueryString()}"), HtmlType);
+    }
+
+    public static async Task<Results<ContentHttpResult, FhirResult>> GetMeasureReportAsync(
+        string id, HttpRequest request, MeasureAnalytics analytics, TimeProvider time, CancellationToken cancellationToken)
+    {
+        if (!TryPrepare(id, request, analytics, time, out var measure, out var query, out var failure))
+        {
+            return failure;
+        }
+
+        var report = await analytics.ReportAsync(measure, query.Period, query.Target, query.Interval, cancellationToken).ConfigureAwait(false);
+        switch (query.Format)
+        {
+            case ReportFormat.Json:
+                return TypedResults.Content(ReportJson.Serialize(report), JsonType);
+            case ReportFormat.Csv:
+                request.HttpContext.Response.Headers.ContentDisposition = $"attachment; filename=\"{measure.Id}-{query.Period.Start:yyyyMMdd}-{query.Period.End:yyyyMMdd}.csv\"";
+                return TypedResults.Content(ReportCsv.Write(report), CsvType);
+            default:
+                var self = $"/reports/measures/{Uri.EscapeDataString(measure.Id)}";
+                var links = new ReportLinks(
+                    $"/reports{query.ToQueryString()}",
+                    self + query.ToQueryString("json"),
+                    self + query.ToQueryString("csv"),
+                    panel => $"{self}/gaps{query.ToQueryString("csv", panel)}");
+                return TypedResults.Content(ReportPage.Render(report, links), HtmlType);
+        }
+    }
+
+    public static Results<PushStreamHttpResult, FhirResult> GetGapsAsync(
+        string id, HttpRequest request, MeasureAnalytics analytics, TimeProvider time)
+    {
+        if (!TryPrepare(id, request, analytics, time, out var measure, out var query, out var failure))
+        {
+            return failure;
+        }
+
+        if (query.Format == ReportFormat.Html)
+        {
+            query = query with { Format = ReportFormat.Csv };
+        }
+
+        var json = query.Format == ReportFormat.Json;
+        if (!json)
+        {
+            request.HttpContext.Response.Headers.ContentDisposition = $"attachment; filename=\"{measure.Id}-gaps.csv\"";
+        }
+
+        // Streamed: a gap list can be as long as the population, and rows are written as patients are evaluated.
+        return TypedResults.Stream(
+            async stream =>
+            {
+                var cancellationToken = request.HttpContext.RequestAborted;
+                await using var writer = new StreamWriter(stream, new UTF8Encoding(false));
+                var buffer = new StringBuilder();
+                if (json)
+                {
+                    buffer.Append('[');
+                }
+                else
+                {
+                    GapCsv.WriteHeader(buffer);
+                }
+
+                var first = true;
+                await foreach (var row in analytics.GapsAsync(measure, query.Period, query.Panel, cancellationToken).ConfigureAwait(false))
+                {
+                    if (json)
+                    {
+                        buffer.Append(first ? "\n" : ",\n").Append(JsonSerializer.Serialize(row, ReportJson.Compact));
+                    }
+                    else
+                    {
+                        GapCsv.WriteRow(buffer, row);
+                    }
+
+                    first = false;
+                    if (buffer.Length > 32 * 1024)
+                    {
+                        await writer.WriteAsync(buffer, cancellationToken).ConfigureAwait(false);
+                        buffer.Clear();
+                    }
+                }
+
+                if (json)
+                {
+                    buffer.Append("\n]\n");
+                }
+
+                await writer.WriteAsync(buffer, cancellationToken).ConfigureAwait(false);
+            },
+            json ? JsonType : CsvType);
+    }
+
+    private static bool TryPrepare(
+        string id, HttpRequest request, MeasureAnalytics analytics, TimeProvider time,
+        [System.Diagnostics.CodeAnalysis.NotNullWhen(true)] out MeasureDefinition? measure,
+        out ReportQuery query, [System.Diagnostics.CodeAnalysis.NotNullWhen(false)] out FhirResult? failure)
+    {
+        var parsed = ReportQuery.TryParse(request.Query, time, out query, out var issues);
+        var all = new List<FhirIssue>(issues);
+        if (!analytics.Repository.TryGetMeasure(id, out measure))
+        {
+            all.Insert(0, new FhirIssue(ReportErrorCodes.UnknownMeasure, $"No measure '{id}' is defined; the index at /reports lists them."));
+        }
+
+        if (!parsed || measure is null)
+        {
+            failure = FhirResult.Outcome(all);
+            measure = null;
+            return false;
+        }
+
+        failure = null;
+        return true;
+    }
+}
