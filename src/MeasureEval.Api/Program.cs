@@ -1,16 +1,19 @@
 using MeasureEval.Api.Analytics;
 using MeasureEval.Api.Hosting;
 using MeasureEval.Api.Logging;
+using MeasureEval.Api.Measures;
 using MeasureEval.Storage;
 
 var builder = WebApplication.CreateBuilder(LoggingSetup.ExpandFlags(args));
 builder.AddMeasureEvalLogging();
 builder.Services.AddMeasureEvalStorage();
 builder.Services.AddMeasureEvalApi();
+builder.Services.AddMeasureEvalMeasures();
 builder.Services.AddMeasureEvalAnalytics();
 
 var app = builder.Build();
 app.UseMeasureEvalApi();
+app.MapMeasureEndpoints();
 app.MapMeasureEvalApi();
 app.MapReportEndpoints();
 app.Run();

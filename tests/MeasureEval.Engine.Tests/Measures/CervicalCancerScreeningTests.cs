@@ -25,6 +25,7 @@ public sealed class CervicalCancerScreeningTests
     [InlineData("cytology-first-day-of-window", 1, 1, 0, 0, 1)] // periodStart - 2 years, inclusive
     [InlineData("cytology-day-before-window", 1, 1, 0, 0, 0)] // one day before the window
     [InlineData("cytology-age-21-on-test-date", 1, 1, 0, 0, 1)] // turned 21 on 2023-12-31: >= 21 on the test date
+    [InlineData("cytology-after-period", 1, 1, 0, 0, 0)] // after periodEnd
     [InlineData("cytology-alternate-code", 1, 1, 0, 0, 1)] // 18500-9 listed
     [InlineData("cytology-report", 1, 1, 0, 0, 1)] // 33717-0 arriving as a DiagnosticReport
     [InlineData("cytology-preliminary", 1, 1, 0, 0, 0)] // preliminary does not count

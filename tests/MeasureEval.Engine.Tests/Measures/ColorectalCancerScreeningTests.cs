@@ -121,11 +121,14 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("palliative-procedure-in-progress", 1, 1, 1, 0, 0)] // Procedure 103735009 in-progress, overlapping MP
     [InlineData("hospice-procedure-before-period", 1, 1, 0, 0, 0)] // must overlap MP
     [InlineData("hospice-service-request", 1, 1, 1, 0, 0)] // ServiceRequest active, intent order
+    [InlineData("hospice-service-request-before-period", 1, 1, 0, 0, 0)] // authoredOn 2025-12-31: not during MP
     [InlineData("hospice-service-request-draft", 1, 1, 0, 0, 0)] // ServiceRequest must be active or completed
     [InlineData("hospice-service-request-proposal", 1, 1, 0, 0, 0)] // intent proposal is neither order (or a child) nor plan
     [InlineData("hospice-service-request-original-order", 1, 1, 1, 0, 0)] // original-order is a child intent of order
     [InlineData("hospice-service-request-plan", 1, 1, 1, 0, 0)] // completed, intent plan
     [InlineData("palliative-condition-z51-5", 1, 1, 1, 0, 0)] // Condition Z51.5 overlapping MP
+    [InlineData("palliative-condition-ongoing-from-before", 1, 1, 1, 0, 0)] // onset before MP, no abatement, active: overlaps
+    [InlineData("hospice-procedure-period-ends-in-period", 1, 1, 1, 0, 0)] // completed hospice care ending in MP
     [InlineData("palliative-condition-abated-before-period", 1, 1, 0, 0, 0)] // abated the day before MP: no overlap
     [InlineData("palliative-condition-abated-on-period-start", 1, 1, 1, 0, 0)] // abatement >= window start: overlaps
     [InlineData("palliative-condition-inactive-no-abatement", 1, 1, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)

@@ -20,6 +20,8 @@ public sealed class DepressionScreeningTests
     [InlineData("phq9-negative", 1, 1, 0, 0, 1)] // negative screen needs no follow-up
     [InlineData("phq9-score-9", 1, 1, 0, 0, 1)] // 9 < 10: negative (Kroenke 2001)
     [InlineData("phq9-score-10-no-follow-up", 1, 1, 0, 0, 0)] // 10 is positive (Kroenke 2001) and there is no follow-up
+    [InlineData("phq9-integer-negative", 1, 1, 0, 0, 1)] // a score as valueInteger: 4, negative
+    [InlineData("phq9-integer-positive-no-follow-up", 1, 1, 0, 0, 0)] // a score as valueInteger: 12, positive, no follow-up
     [InlineData("phq2-score-2", 1, 1, 0, 0, 1)] // 2 < 3: negative (Kroenke 2003)
     [InlineData("phq2-score-3-no-follow-up", 1, 1, 0, 0, 0)] // 3 is positive (Kroenke 2003), no follow-up
     [InlineData("phq9-adolescent-negative", 1, 1, 0, 0, 1)] // adolescent PHQ-9 negative

@@ -65,7 +65,8 @@ public sealed class DiabetesA1cAbove9Tests
     [InlineData("a1c-only-entered-in-error", 1, 1, 0, 0, 1)] // no counting result: in the numerator
     [InlineData("a1c-only-preliminary", 1, 1, 0, 0, 1)] // no counting result: in the numerator
     [InlineData("a1c-only-before-period", 1, 1, 0, 0, 1)] // no result in MP: in the numerator
-    [InlineData("a1c-unconvertible-unit", 1, 1, 0, 0, 0)] // the most recent result's unit cannot be converted: never qualifies (is not > 9), reported - our reading: a result exists, so 'none' does not apply
+    [InlineData("a1c-unconvertible-unit", 1, 1, 0, 0, 1)] // the only result is in mg/dL: never qualifies, unusable, never the most recent - so there is none (open gap), reported
+    [InlineData("a1c-most-recent-unconvertible", 1, 1, 0, 0, 0)] // the later mg/dL result is unusable, never the most recent: the 8.0 of 03-01 decides (not > 9)
     // Exclusions: hospice/palliative; deceased during MP - an excluded patient is never in the numerator, even with no result
     [InlineData("hospice-without-result", 1, 1, 1, 0, 0)] // excluded; no-result numerator not evaluated
     [InlineData("died-during-period-without-result", 1, 1, 1, 0, 0)] // died during MP

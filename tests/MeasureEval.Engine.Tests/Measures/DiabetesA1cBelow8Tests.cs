@@ -59,6 +59,10 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("a1c-ifcc-63", 1, 1, 0, 0, 1)] // 63 mmol/mol -> 7.915 % (spec check value, master equation)
     [InlineData("a1c-ifcc-64", 1, 1, 0, 0, 0)] // 64 mmol/mol -> 8.007 %, not < 8 (spec check value; never rounded)
     [InlineData("a1c-unconvertible-unit", 1, 1, 0, 0, 0)] // mg/dL cannot be converted to %: never qualifies, reported
+    [InlineData("a1c-most-recent-unconvertible", 1, 1, 0, 0, 1)] // the mg/dL result never qualifies - like a record without a usable time - so it is unusable and never the most recent: the 7.0 of 03-01 decides
+    [InlineData("a1c-ifcc-comparator-below-63", 1, 1, 0, 0, 1)] // <63 mmol/mol: every allowed value converts below 7.915 %
+    [InlineData("a1c-ifcc-comparator-below-64", 1, 1, 0, 0, 0)] // <64 mmol/mol allows 63.99 -> 8.0058 %: not every value < 8
+    [InlineData("a1c-tie-lowest-after-conversion", 1, 1, 0, 0, 1)] // same date: lowest after conversion is 63 mmol/mol = 7.915 % (not the raw 8.2 < 63)
     [InlineData("a1c-comparator-below-6", 1, 1, 0, 0, 1)] // <6.0 % is < 8 (spec example)
     [InlineData("a1c-comparator-below-8-5", 1, 1, 0, 0, 0)] // <8.5 % allows 8.2: not every value < 8
     [InlineData("a1c-comparator-at-most-8", 1, 1, 0, 0, 0)] // <=8.0 % allows 8.0
