@@ -38,6 +38,8 @@ public sealed class ColorectalCancerScreeningTests
     // Deceased (our rule): before periodStart -> not in IP; during MP -> denominator exclusion
     [InlineData("died-before-period", 0, 0, 0, 0, 0)] // died the day before periodStart
     [InlineData("died-on-period-start", 1, 1, 1, 0, 0)] // died during MP: excluded; numerator not evaluated although a colonoscopy is present
+    [InlineData("died-stated-date-on-period-start", 1, 1, 1, 0, 0)] // died on stated date 2026-01-01, during MP (UTC 2025-12-31)
+    [InlineData("died-stated-date-before-period", 0, 0, 0, 0, 0)] // died on stated date 2025-12-31, before MP (UTC 2026-01-01)
     [InlineData("deceased-boolean", 0, 0, 0, 0, 0)] // deceasedBoolean true without a date counts as before periodStart
     [InlineData("died-partial-year-before-period", 0, 0, 0, 0, 0)] // died in 2025: wholly before periodStart
     [InlineData("died-partial-month-during-period", 1, 1, 1, 0, 0)] // died in 2026-05: during MP
@@ -63,6 +65,8 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("fit-offset-plus14", 1, 1, 0, 0, 1)] // counts on its stated date 2026-01-01, no conversion to UTC
     [InlineData("fit-offset-minus05", 1, 1, 0, 0, 0)] // counts on its stated date 2025-12-31 (UTC would be 2026-01-01)
     [InlineData("fit-effective-instant", 1, 1, 0, 0, 1)] // effectiveInstant is a usable time
+    [InlineData("fit-effective-instant-offset-plus14", 1, 1, 0, 0, 1)] // an instant also counts on its stated date, 2026-01-01
+    [InlineData("fit-effective-instant-offset-minus05", 1, 1, 0, 0, 0)] // an instant's stated date 2025-12-31 (UTC 2026-01-01)
     [InlineData("fit-effective-period-end-in-period", 1, 1, 0, 0, 1)] // effectivePeriod is judged by its end
     [InlineData("fit-effective-period-start-only", 1, 1, 0, 0, 0)] // without an end, by its start (2025-12-30: outside)
     [InlineData("fit-partial-month-inside", 1, 1, 0, 0, 1)] // 2026-05 lies wholly inside MP
