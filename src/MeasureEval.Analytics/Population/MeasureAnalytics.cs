@@ -112,7 +112,12 @@ public sealed class MeasureAnalytics(IResourceStore store, MeasureRepository rep
             }
         }
 
-        var labels = new Dictionary<string, string>(StringComparer.Ordinal);
+        var labels = new Dictionary<string, string>(StringComparer.Ordinal)
+        {
+            [PanelComparison.Unattributed] = "Unattributed (no primary-care clinician)",
+            [Payer.None] = "No coverage",
+            [Payer.SelfPay] = "Self-pay",
+        };
         foreach (var reference in references)
         {
             if (await ReferenceLabels.ResolveAsync(store, reference, cancellationToken).ConfigureAwait(false) is { } label)

@@ -38,7 +38,7 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
         }
 
         var patient = new PreparedPatient(facts);
-        var evidence = Evidence(measure, patient, period, numerator);
+        var evidence = Evidence(measure, patient, period, numerator, result);
         if (result.HasGap(measure.ImprovementNotation))
         {
             var (actions, allNeeded) = Actions(measure, patient, period, numerator, decrease);
@@ -115,7 +115,7 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
 
     // ---- evidence ----
 
-    private List<GapEvidence> Evidence(MeasureDefinition measure, PreparedPatient patient, MeasurementPeriod period, Criterion numerator)
+    private List<GapEvidence> Evidence(MeasureDefinition measure, PreparedPatient patient, MeasurementPeriod period, Criterion numerator, PatientResult result)
     {
         var items = new List<GapEvidence>();
         var seen = new HashSet<string>(StringComparer.Ordinal);
@@ -144,6 +144,11 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
             {
                 items.Add(new GapEvidence($"{NameOf(latest, alternative)} on {Day(latest.Point!.Value.First)}{(counts ? "" : " (outside the window, does not count)")}", latest.Point!.Value.First, [latest.Reference], counts));
             }
+        }
+
+        foreach (var count in result.Counts)
+        {
+            items.Add(new GapEvidence($"{count.Label}: {count.Counted} of {count.Required} {(count.Required == 1 ? "dose" : "doses")}", null, [], count.Missing == 0));
         }
 
         return items;
@@ -281,7 +286,7 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
                 var missing = detail?.Missing ?? count.AtLeast;
                 var what = count.Label ?? count.Retrieve.Label ?? Name(count.Retrieve, count.Retrieve);
                 var text = $"{what}: {missing} more {(missing == 1 ? "dose" : "doses")} (counted {detail?.Counted ?? 0} of {count.AtLeast})";
-                actions.Add(Action(count.Retrieve, text, null, state, scope) with { Missing = missing });
+                actions.Add(Action(count.Retrieve, text, null, state, scope) with { Missing = missing, What = what });
                 break;
             }
 
@@ -295,7 +300,7 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
                 {
                     foreach (var inner in RecordAnchored(mostRecent.Then))
                     {
-                        actions.Add(Action(inner.Retrieve, inner.Label ?? Name(inner.Retrieve, inner.Retrieve), $"after the {what} of {Day(chosen.Scope.Record!.Time.First)}", state, chosen.Scope));
+                        actions.Add(Action(inner.Retrieve, inner.Label ?? Name(inner.Retrieve, inner.Retrieve), $"after the {Name(chosen.Scope.Record!.Source, mostRecent.Retrieve)} of {Day(chosen.Scope.Record!.Time.First)}", state, chosen.Scope));
                     }
                 }
 
