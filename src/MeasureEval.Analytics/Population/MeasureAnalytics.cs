@@ -114,7 +114,7 @@ public sealed class MeasureAnalytics(IResourceStore store, MeasureRepository rep
 
         var labels = new Dictionary<string, string>(StringComparer.Ordinal)
         {
-            [PanelComparison.Unattributed] = "Unattributed (no primary-care clinician)",
+            [PanelComparison.Unattributed] = "Unattributed",
             [Payer.None] = "No coverage",
             [Payer.SelfPay] = "Self-pay",
         };
