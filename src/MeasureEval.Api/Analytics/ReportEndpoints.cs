@@ -37,13 +37,13 @@ public static class ReportEndpoints
     public static async Task<Results<ContentHttpResult, FhirResult>> GetIndexAsync(
         HttpRequest request, MeasureAnalytics analytics, TimeProvider time, CancellationToken cancellationToken)
     {
-        if (!ReportQuery.TryParse(request.Query, time, out var query, out var issues) || query.Format == ReportFormat.Csv)
+        if (!ReportQuery.TryParse(request.Query, time, out var query, out var issues) || query.Format == ReportOutput.Csv)
         {
             return FhirResult.Outcome(issues.Count > 0 ? issues : [new FhirIssue(ReportErrorCodes.InvalidParameter, "the index is served as html or json.", "format")]);
         }
 
         var summaries = await analytics.SummariesAsync(query.Period, cancellationToken).ConfigureAwait(false);
-        return query.Format == ReportFormat.Json
+        return query.Format == ReportOutput.Json
             ? TypedResults.Content(ReportJson.Serialize(summaries), JsonType)
             : TypedResults.Content(ReportIndexPage.Render(query.Period, summaries, id => $"/reports/measures/{Uri.EscapeDataString(id)}{query.ToQueryString()}"), HtmlType);
     }
@@ -59,9 +59,9 @@ public static class ReportEndpoints
         var report = await analytics.ReportAsync(measure, query.Period, query.Target, query.Interval, cancellationToken).ConfigureAwait(false);
         switch (query.Format)
         {
-            case ReportFormat.Json:
+            case ReportOutput.Json:
                 return TypedResults.Content(ReportJson.Serialize(report), JsonType);
-            case ReportFormat.Csv:
+            case ReportOutput.Csv:
                 request.HttpContext.Response.Headers.ContentDisposition = $"attachment; filename=\"{measure.Id}-{query.Period.Start:yyyyMMdd}-{query.Period.End:yyyyMMdd}.csv\"";
                 return TypedResults.Content(ReportCsv.Write(report), CsvType);
             default:
@@ -83,12 +83,12 @@ public static class ReportEndpoints
             return failure;
         }
 
-        if (query.Format == ReportFormat.Html)
+        if (query.Format == ReportOutput.Html)
         {
-            query = query with { Format = ReportFormat.Csv };
+            query = query with { Format = ReportOutput.Csv };
         }
 
-        var json = query.Format == ReportFormat.Json;
+        var json = query.Format == ReportOutput.Json;
         if (!json)
         {
             request.HttpContext.Response.Headers.ContentDisposition = $"attachment; filename=\"{measure.Id}-gaps.csv\"";

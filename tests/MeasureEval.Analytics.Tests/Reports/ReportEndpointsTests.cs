@@ -33,6 +33,11 @@ public class ReportEndpointsTests(DemoPopulationHost host)
         Assert.True(interval.GetProperty("lower").GetDouble() < overall.GetProperty("rate").GetDouble());
         Assert.Equal(4, root.GetProperty("trend").GetProperty("points").GetArrayLength());
         Assert.Equal(Math.Max(0, (int)Math.Ceiling(0.7m * n) - numerator), root.GetProperty("panels").GetProperty("networkPatientsToGoal").GetInt32());
+
+        // Panels are shown by their clinician's name, read from the stored Practitioner.
+        Assert.All(
+            root.GetProperty("panels").GetProperty("panels").EnumerateArray().Where(p => p.GetProperty("panel").GetString()!.StartsWith("Practitioner/", StringComparison.Ordinal)),
+            p => Assert.DoesNotContain("/", p.GetProperty("label").GetString(), StringComparison.Ordinal));
     }
 
     [Fact]
