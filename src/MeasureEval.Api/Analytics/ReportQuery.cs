@@ -18,7 +18,7 @@ public enum ReportOutput
 /// The query of a report call, checked as a whole: every bad parameter is reported, each with its name as the
 /// issue's expression. Defaults: the current calendar year, no target, quarters, HTML.
 /// </summary>
-public sealed record ReportQuery(MeasurementPeriod Period, decimal? Target, TrendInterval Interval, ReportOutput Format, string? Panel)
+public sealed record ReportQuery(MeasurementPeriod Period, decimal? Target, TrendInterval Interval, ReportOutput Format)
 {
     public static bool TryParse(IQueryCollection query, TimeProvider time, out ReportQuery parsed, out IReadOnlyList<FhirIssue> issues)
     {
@@ -68,14 +68,13 @@ public sealed record ReportQuery(MeasurementPeriod Period, decimal? Target, Tren
                 break;
         }
 
-        var panel = Single(query, "panel", found);
         issues = found;
-        parsed = new ReportQuery(new MeasurementPeriod(start, end), target, interval, format, string.IsNullOrEmpty(panel) ? null : panel);
+        parsed = new ReportQuery(new MeasurementPeriod(start, end), target, interval, format);
         return found.Count == 0;
     }
 
-    /// <summary>The query string that reproduces this report (without the format and panel).</summary>
-    public string ToQueryString(string? format = null, string? panel = null)
+    /// <summary>The query string that reproduces this report, in <paramref name="format"/> when given.</summary>
+    public string ToQueryString(string? format = null)
     {
         var parts = new List<string>
         {
@@ -91,11 +90,6 @@ public sealed record ReportQuery(MeasurementPeriod Period, decimal? Target, Tren
         if (format is not null)
         {
             parts.Add($"format={format}");
-        }
-
-        if (panel is not null)
-        {
-            parts.Add($"panel={Uri.EscapeDataString(panel)}");
         }
 
         return "?" + string.Join('&', parts);

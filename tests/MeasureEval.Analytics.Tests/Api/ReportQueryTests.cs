@@ -26,14 +26,13 @@ public class ReportQueryTests
     public void TryParse_AllParameters()
     {
         var ok = ReportQuery.TryParse(
-            Query(("periodStart", "2026-01-01"), ("periodEnd", "2026-12-31"), ("target", "0.75"), ("interval", "rolling-12-months"), ("format", "csv"), ("panel", "Practitioner/a")),
+            Query(("periodStart", "2026-01-01"), ("periodEnd", "2026-12-31"), ("target", "0.75"), ("interval", "rolling-12-months"), ("format", "csv")),
             July2027, out var query, out _);
         Assert.True(ok);
         Assert.Equal(0.75m, query.Target);
         Assert.Equal(TrendInterval.Rolling12Months, query.Interval);
         Assert.Equal(ReportOutput.Csv, query.Format);
-        Assert.Equal("Practitioner/a", query.Panel);
-        Assert.Equal("?periodStart=2026-01-01&periodEnd=2026-12-31&target=0.75&interval=rolling-12-months&format=json&panel=Practitioner%2Fa", query.ToQueryString("json", "Practitioner/a"));
+        Assert.Equal("?periodStart=2026-01-01&periodEnd=2026-12-31&target=0.75&interval=rolling-12-months&format=json", query.ToQueryString("json"));
     }
 
     [Fact]

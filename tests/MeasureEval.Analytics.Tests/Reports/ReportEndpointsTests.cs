@@ -54,30 +54,15 @@ public class ReportEndpointsTests(DemoPopulationHost host)
     }
 
     [Fact]
-    public async Task GetMeasureGaps_OneRowPerOpenGap()
-    {
-        using var json = await GetJsonAsync($"/reports/measures/diabetes-a1c-above-9?{DemoPopulationHost.Period}&format=json");
-        var overall = json.RootElement.GetProperty("summary").GetProperty("overall");
-
-        // Inverse measure: the open gaps are the numerator.
-        var expected = overall.GetProperty("numerator").GetInt32();
-        var csv = await _client.GetStringAsync(new Uri($"/reports/measures/diabetes-a1c-above-9/gaps?{DemoPopulationHost.Period}", UriKind.Relative));
-        var rows = csv.Split("\r\n", StringSplitOptions.RemoveEmptyEntries);
-        Assert.Equal("patient,panel,payer,age_band,missing", rows[0]);
-        Assert.Equal(expected, rows.Length - 1);
-    }
-
-    [Fact]
-    public async Task GetMeasureGaps_PanelFilter()
+    public async Task GetMeasureReport_LinksEachPanelToItsCareGapExport()
     {
         using var json = await GetJsonAsync($"/reports/measures/colorectal-cancer-screening?{DemoPopulationHost.Period}&format=json");
-        var panel = json.RootElement.GetProperty("panels").GetProperty("panels").EnumerateArray().First(p => p.GetProperty("limits").ValueKind != JsonValueKind.Null);
-        var code = panel.GetProperty("panel").GetString()!;
-        var rate = panel.GetProperty("rate");
-        var open = rate.GetProperty("n").GetInt32() - rate.GetProperty("numerator").GetInt32();
-        using var gaps = await GetJsonAsync($"/reports/measures/colorectal-cancer-screening/gaps?{DemoPopulationHost.Period}&panel={Uri.EscapeDataString(code)}&format=json");
-        Assert.Equal(open, gaps.RootElement.GetArrayLength());
-        Assert.All(gaps.RootElement.EnumerateArray(), g => Assert.Equal(code, g.GetProperty("panel").GetString()));
+        var panel = json.RootElement.GetProperty("panels").GetProperty("panels").EnumerateArray()
+            .First(p => p.GetProperty("limits").ValueKind != JsonValueKind.Null).GetProperty("panel").GetString()!;
+        var html = await _client.GetStringAsync(new Uri($"/reports/measures/colorectal-cancer-screening?{DemoPopulationHost.Period}", UriKind.Relative));
+        var link = "/Measure/$care-gaps-export?periodStart=2026-01-01&amp;periodEnd=2026-12-31&amp;measureId=colorectal-cancer-screening&amp;status=open-gap"
+            + $"&amp;practitioner={Uri.EscapeDataString(panel)}&amp;_format=csv";
+        Assert.Contains($"href=\"{link}\"", html, StringComparison.Ordinal);
     }
 
     [Fact]
