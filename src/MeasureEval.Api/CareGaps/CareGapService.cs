@@ -56,7 +56,7 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
         }
         else if (query.SubjectType == "Group")
         {
-            patientIds = await GroupMembersAsync(query.SubjectId!, cancellationToken);
+            patientIds = await GroupMembersAsync(query.SubjectId!, query.Period, cancellationToken);
             if (patientIds is null)
             {
                 issues.Add(new FhirIssue(CareGapErrors.UnknownSubject, $"Group/{query.SubjectId} is not stored", "subject"));
@@ -129,8 +129,11 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
     private static bool SameReference(string reference, string relative) =>
         reference == relative || reference.EndsWith("/" + relative, StringComparison.Ordinal);
 
-    /// <summary>The patient ids among the Group's active members, or null when no such Group is stored.</summary>
-    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, CancellationToken cancellationToken)
+    /// <summary>
+    /// The patient ids among the Group's members that are not inactive and whose attribution period (member.period, when
+    /// given) overlaps the measurement period; null when no such Group is stored.
+    /// </summary>
+    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, MeasurementPeriod period, CancellationToken cancellationToken)
     {
         var stored = await store.ReadAsync("Group", id, cancellationToken);
         if (stored is not { Deleted: false, Json: { } json })
@@ -139,6 +142,13 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
         }
 
         var group = FhirJson.Parse<Group>(json);
-        return [.. group.Member.Where(m => m.Inactive != true).Select(m => FactExtractor.PatientIdOf(m.Entity)).OfType<string>().Distinct(StringComparer.Ordinal)];
+        return [.. group.Member.Where(m => m.Inactive != true && Attributed(m.Period, period)).Select(m => FactExtractor.PatientIdOf(m.Entity)).OfType<string>().Distinct(StringComparer.Ordinal)];
+    }
+
+    private static bool Attributed(Period? attribution, MeasurementPeriod period)
+    {
+        var start = StatedTime.TryParse(attribution?.Start, out var s) ? s.First : DateOnly.MinValue;
+        var end = StatedTime.TryParse(attribution?.End, out var e) ? e.Last : DateOnly.MaxValue;
+        return start <= period.End && end >= period.Start;
     }
 }
