@@ -19,6 +19,20 @@ public sealed class ErrorCatalogueTests
     }
 
     [Fact]
+    public void All_EveryCode_DocumentedInDevelopersGuide()
+    {
+        var directory = new DirectoryInfo(AppContext.BaseDirectory);
+        while (directory is not null && !File.Exists(Path.Combine(directory.FullName, "DEVELOPERS.md")))
+        {
+            directory = directory.Parent;
+        }
+
+        var guide = File.ReadAllText(Path.Combine(directory!.FullName, "DEVELOPERS.md"));
+
+        Assert.All(ErrorCatalogue.All, c => Assert.Contains($"| `{c.Code}` |", guide, StringComparison.Ordinal));
+    }
+
+    [Fact]
     public void All_ErrorStatuses_AreClientOrServerErrors()
     {
         Assert.All(

@@ -159,6 +159,53 @@ public abstract partial class ResourceStoreContract
     }
 
     [SkippableFact]
+    public async Task RebuildIndexAsync_AfterWrites_GivesSameEntries()
+    {
+        await using var store = await CreateStoreAsync();
+        await StageMixedHistoryAsync(store);
+        var before = await SnapshotAsync(store);
+
+        await store.RebuildIndexAsync(default);
+
+        Assert.Equal(before, await SnapshotAsync(store));
+        Assert.Equal(3, before.Count);
+    }
+
+    [SkippableFact]
+    public async Task InitializeAsync_IndexOfOlderFormat_RebuildsIt()
+    {
+        await using var store = await CreateStoreAsync();
+        await StageMixedHistoryAsync(store);
+        var before = await SnapshotAsync(store);
+        await ExecuteSqlAsync("UPDATE index_state SET format = 1; DELETE FROM patient_index; UPDATE resources SET index_patient_id = NULL");
+
+        await store.InitializeAsync(default);
+
+        Assert.Equal(before, await SnapshotAsync(store));
+        var moved = TestResources.HbA1c();
+        moved.Subject = new ResourceReference("Patient/pat-cy");
+        await WriteAllAsync(store, moved);
+        Assert.DoesNotContain((await store.GetPatientFactsAsync("pat-ben", default))!.Facts, f => f.Id == "obs-a1c");
+    }
+
+    /// <summary>Versions, a move to another patient, a deletion and a resource outside any patient.</summary>
+    private async Task StageMixedHistoryAsync(IResourceStore store)
+    {
+        await WriteAllAsync(store, TestResources.Ana(), TestResources.HbA1c(), TestResources.AnaCoverage(), TestResources.Flu(), TestResources.CedarValley(),
+            TestResources.ObservationOf("obs-ben", "pat-ben"));
+        var moved = TestResources.HbA1c();
+        moved.Subject = new ResourceReference("Patient/pat-ben");
+        await WriteAllAsync(store, moved);
+        await WriteAsync(store, s => s.DeleteAsync("Immunization", "imm-flu", null, default));
+        await WriteAllAsync(store, TestResources.ObservationOf("obs-dan", "pat-dan"));
+    }
+
+    private static async Task<List<string>> SnapshotAsync(IResourceStore store) =>
+        [.. (await ToListAsync(store.StreamPatientFactsAsync(null, default))).Select(f => System.Text.Json.JsonSerializer.Serialize(f, SnapshotOptions))];
+
+    private static readonly System.Text.Json.JsonSerializerOptions SnapshotOptions = new() { TypeInfoResolver = new System.Text.Json.Serialization.Metadata.DefaultJsonTypeInfoResolver() };
+
+    [SkippableFact]
     public async Task BeginWriteAsync_ConcurrentSessionsOnOneResource_LoseNoVersion()
     {
         await using var store = await CreateStoreAsync();

@@ -22,6 +22,9 @@ public abstract partial class ResourceStoreContract
     /// <summary>A new, initialized, empty store.</summary>
     protected abstract Task<SqlResourceStore> CreateStoreAsync();
 
+    /// <summary>Runs SQL on the last created store's database behind its back (to stage what an older build left).</summary>
+    protected abstract Task ExecuteSqlAsync(string sql);
+
     [SkippableFact]
     public async Task CreateAsync_NewResource_AssignsIdAndFirstVersion()
     {

@@ -10,13 +10,39 @@ namespace MeasureEval.Storage.Common;
 /// evaluation, and this form decodes several times faster than JSON of the same content (DEVELOPERS.md has the figures).
 /// </summary>
 /// <remarks>
-/// Layout (format 1): format byte; string count and strings (UTF-8, length-prefixed); then the entry, every string as a
-/// reference (0 = null, n = table[n − 1]) and every count as a 7-bit varint. A property added to the index model must be
-/// added here (and the format number raised): <c>PatientFactsCodecTests</c> fails until it is.
+/// Layout (format 2): format byte; string count and strings (UTF-8, length-prefixed); then the entry, every string as a
+/// reference (0 = null, n = table[n − 1]) and every count as a 7-bit varint. A clinical fact starts with a bit set of the
+/// elements it has (<see cref="FactField"/>), and only those follow: most facts fill a handful of their twenty elements.
+/// A property added to the index model must be added here and <see cref="Format"/> raised (stores rebuild their index
+/// when it changes): <c>PatientFactsCodecTests</c> fails until it is.
 /// </remarks>
 public static class PatientFactsCodec
 {
-    private const byte Format = 1;
+    /// <summary>The layout version; part of the index version a store records.</summary>
+    public const byte Format = 2;
+
+    [Flags]
+    private enum FactField : uint
+    {
+        VersionId = 1 << 0,
+        Status = 1 << 1,
+        Codes = 1 << 2,
+        Time = 1 << 3,
+        Abatement = 1 << 4,
+        RecordedDate = 1 << 5,
+        ClinicalStatus = 1 << 6,
+        VerificationStatus = 1 << 7,
+        Intent = 1 << 8,
+        EncounterClass = 1 << 9,
+        DischargeDisposition = 1 << 10,
+        IsSubpotent = 1 << 11,
+        StatusReason = 1 << 12,
+        DataAbsentReason = 1 << 13,
+        HasValue = 1 << 14,
+        Quantity = 1 << 15,
+        ValueCodes = 1 << 16,
+        Components = 1 << 17,
+    }
 
     public static byte[] Encode(PatientFacts facts)
     {
@@ -102,39 +128,122 @@ public static class PatientFactsCodec
         {
             String(fact.ResourceType);
             String(fact.Id);
-            String(fact.VersionId);
-            String(fact.Status);
-            Codings(fact.Codes);
-            Time(fact.Time);
-            Time(fact.Abatement);
-            String(fact.RecordedDate);
-            Codings(fact.ClinicalStatus);
-            Codings(fact.VerificationStatus);
-            String(fact.Intent);
-            if (fact.EncounterClass is { } encounterClass)
+            var fields = FieldsOf(fact);
+            Varint(_body, (uint)fields);
+            if (fields.HasFlag(FactField.VersionId))
             {
-                Byte(1);
-                Coding(encounterClass);
-            }
-            else
-            {
-                Byte(0);
+                String(fact.VersionId);
             }
 
-            Codings(fact.DischargeDisposition);
-            Bool(fact.IsSubpotent);
-            Codings(fact.StatusReason);
-            Codings(fact.DataAbsentReason);
-            Byte(fact.HasValue ? (byte)1 : (byte)0);
-            Quantity(fact.Quantity);
-            Codings(fact.ValueCodes);
-            Count(fact.Components.Count);
-            foreach (var component in fact.Components)
+            if (fields.HasFlag(FactField.Status))
             {
-                Codings(component.Codes);
-                Quantity(component.Quantity);
-                Codings(component.DataAbsentReason);
+                String(fact.Status);
             }
+
+            if (fields.HasFlag(FactField.Codes))
+            {
+                Codings(fact.Codes);
+            }
+
+            if (fields.HasFlag(FactField.Time))
+            {
+                Time(fact.Time);
+            }
+
+            if (fields.HasFlag(FactField.Abatement))
+            {
+                Time(fact.Abatement);
+            }
+
+            if (fields.HasFlag(FactField.RecordedDate))
+            {
+                String(fact.RecordedDate);
+            }
+
+            if (fields.HasFlag(FactField.ClinicalStatus))
+            {
+                Codings(fact.ClinicalStatus);
+            }
+
+            if (fields.HasFlag(FactField.VerificationStatus))
+            {
+                Codings(fact.VerificationStatus);
+            }
+
+            if (fields.HasFlag(FactField.Intent))
+            {
+                String(fact.Intent);
+            }
+
+            if (fields.HasFlag(FactField.EncounterClass))
+            {
+                Coding(fact.EncounterClass!);
+            }
+
+            if (fields.HasFlag(FactField.DischargeDisposition))
+            {
+                Codings(fact.DischargeDisposition);
+            }
+
+            if (fields.HasFlag(FactField.IsSubpotent))
+            {
+                Byte(fact.IsSubpotent == true ? (byte)1 : (byte)0);
+            }
+
+            if (fields.HasFlag(FactField.StatusReason))
+            {
+                Codings(fact.StatusReason);
+            }
+
+            if (fields.HasFlag(FactField.DataAbsentReason))
+            {
+                Codings(fact.DataAbsentReason);
+            }
+
+            if (fields.HasFlag(FactField.Quantity))
+            {
+                Quantity(fact.Quantity);
+            }
+
+            if (fields.HasFlag(FactField.ValueCodes))
+            {
+                Codings(fact.ValueCodes);
+            }
+
+            if (fields.HasFlag(FactField.Components))
+            {
+                Count(fact.Components.Count);
+                foreach (var component in fact.Components)
+                {
+                    Codings(component.Codes);
+                    Quantity(component.Quantity);
+                    Codings(component.DataAbsentReason);
+                }
+            }
+        }
+
+        private static FactField FieldsOf(ClinicalFact fact)
+        {
+            FactField fields = 0;
+            fields |= fact.VersionId is null ? 0 : FactField.VersionId;
+            fields |= fact.Status is null ? 0 : FactField.Status;
+            fields |= fact.Codes.Count == 0 ? 0 : FactField.Codes;
+            fields |= fact.Time is null ? 0 : FactField.Time;
+            fields |= fact.Abatement is null ? 0 : FactField.Abatement;
+            fields |= fact.RecordedDate is null ? 0 : FactField.RecordedDate;
+            fields |= fact.ClinicalStatus.Count == 0 ? 0 : FactField.ClinicalStatus;
+            fields |= fact.VerificationStatus.Count == 0 ? 0 : FactField.VerificationStatus;
+            fields |= fact.Intent is null ? 0 : FactField.Intent;
+            fields |= fact.EncounterClass is null ? 0 : FactField.EncounterClass;
+            fields |= fact.DischargeDisposition.Count == 0 ? 0 : FactField.DischargeDisposition;
+            fields |= fact.IsSubpotent is null ? 0 : FactField.IsSubpotent;
+            fields |= fact.StatusReason.Count == 0 ? 0 : FactField.StatusReason;
+            fields |= fact.DataAbsentReason.Count == 0 ? 0 : FactField.DataAbsentReason;
+            fields |= fact.HasValue ? FactField.HasValue : 0;
+            fields |= fact.Quantity is null ? 0 : FactField.Quantity;
+            fields |= fact.ValueCodes.Count == 0 ? 0 : FactField.ValueCodes;
+            fields |= fact.Components.Count == 0 ? 0 : FactField.Components;
+            return fields;
         }
 
         private void Time(FactTime? time)
@@ -257,12 +366,14 @@ public static class PatientFactsCodec
         private readonly ReadOnlySpan<byte> _data;
         private string[] _table;
         private int _position;
+        private Dictionary<ulong, FactCoding[]>? _singles;
 
         public EntryReader(ReadOnlySpan<byte> data)
         {
             _data = data;
             _table = [];
             _position = 0;
+            _singles = null;
         }
 
         public PatientFacts ReadEntry()
@@ -332,30 +443,30 @@ public static class PatientFactsCodec
         {
             var resourceType = String() ?? throw new InvalidDataException("A stored fact has no resource type.");
             var id = String() ?? throw new InvalidDataException("A stored fact has no id.");
-            var fact = new ClinicalFact
+            var fields = (FactField)Varint();
+            return new ClinicalFact
             {
                 ResourceType = resourceType,
                 Id = id,
-                VersionId = String(),
-                Status = String(),
-                Codes = Codings(),
-                Time = Time(),
-                Abatement = Time(),
-                RecordedDate = String(),
-                ClinicalStatus = Codings(),
-                VerificationStatus = Codings(),
-                Intent = String(),
-                EncounterClass = Byte() == 1 ? Coding() : null,
-                DischargeDisposition = Codings(),
-                IsSubpotent = Bool(),
-                StatusReason = Codings(),
-                DataAbsentReason = Codings(),
-                HasValue = Byte() == 1,
-                Quantity = Quantity(),
-                ValueCodes = Codings(),
-                Components = Components(),
+                VersionId = fields.HasFlag(FactField.VersionId) ? String() : null,
+                Status = fields.HasFlag(FactField.Status) ? String() : null,
+                Codes = fields.HasFlag(FactField.Codes) ? Codings() : [],
+                Time = fields.HasFlag(FactField.Time) ? Time() : null,
+                Abatement = fields.HasFlag(FactField.Abatement) ? Time() : null,
+                RecordedDate = fields.HasFlag(FactField.RecordedDate) ? String() : null,
+                ClinicalStatus = fields.HasFlag(FactField.ClinicalStatus) ? Codings() : [],
+                VerificationStatus = fields.HasFlag(FactField.VerificationStatus) ? Codings() : [],
+                Intent = fields.HasFlag(FactField.Intent) ? String() : null,
+                EncounterClass = fields.HasFlag(FactField.EncounterClass) ? Coding() : null,
+                DischargeDisposition = fields.HasFlag(FactField.DischargeDisposition) ? Codings() : [],
+                IsSubpotent = fields.HasFlag(FactField.IsSubpotent) ? Byte() == 1 : null,
+                StatusReason = fields.HasFlag(FactField.StatusReason) ? Codings() : [],
+                DataAbsentReason = fields.HasFlag(FactField.DataAbsentReason) ? Codings() : [],
+                HasValue = fields.HasFlag(FactField.HasValue),
+                Quantity = fields.HasFlag(FactField.Quantity) ? Quantity() : null,
+                ValueCodes = fields.HasFlag(FactField.ValueCodes) ? Codings() : [],
+                Components = fields.HasFlag(FactField.Components) ? Components() : [],
             };
-            return fact;
         }
 
         private FactComponent[] Components()
@@ -407,6 +518,11 @@ public static class PatientFactsCodec
                 return [];
             }
 
+            if (count == 1)
+            {
+                return SingleCoding();
+            }
+
             var codings = new FactCoding[count];
             for (var i = 0; i < count; i++)
             {
@@ -418,11 +534,25 @@ public static class PatientFactsCodec
 
         private FactCoding Coding() => new(String(), String());
 
-        private string? String()
+        /// <summary>One-coding lists repeat across an entry's facts (the same code, status, class): share one instance each.</summary>
+        private FactCoding[] SingleCoding()
         {
-            var reference = Varint();
-            return reference == 0 ? null : _table[reference - 1];
+            var system = Varint();
+            var code = Varint();
+            var key = ((ulong)system << 32) | code;
+            _singles ??= [];
+            if (!_singles.TryGetValue(key, out var codings))
+            {
+                codings = [new FactCoding(Lookup(system), Lookup(code))];
+                _singles.Add(key, codings);
+            }
+
+            return codings;
         }
+
+        private string? String() => Lookup(Varint());
+
+        private string? Lookup(uint reference) => reference == 0 ? null : _table[reference - 1];
 
         private bool? Bool() => Byte() switch { 0 => null, 1 => false, _ => true };
 

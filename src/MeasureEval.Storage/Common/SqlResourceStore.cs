@@ -44,7 +44,15 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
     /// <summary>Returns the stored facts (or no row / NULL) of patient @p0, locking the entry until the transaction ends.</summary>
     internal abstract string LockIndexEntrySql { get; }
 
+    /// <summary>
+    /// Keeps other writers (and other rebuilds) out while the index is rebuilt, run inside the rebuild transaction; null
+    /// where a write session already excludes every other writer.
+    /// </summary>
+    internal abstract string? LockForRebuildSql { get; }
+
     protected abstract ValueTask<DbConnection> OpenConnectionAsync(CancellationToken cancellationToken);
+
+    internal ValueTask<DbConnection> OpenReaderAsync(CancellationToken cancellationToken) => OpenConnectionAsync(cancellationToken);
 
     protected abstract ValueTask<DbTransaction> BeginWriteTransactionAsync(DbConnection connection, CancellationToken cancellationToken);
 
@@ -84,6 +92,26 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         }
 
         await transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
+
+        // An index written in another layout (or by an older build) is rebuilt from the stored resources.
+        await using var session = (SqlStoreSession)await BeginWriteAsync(cancellationToken).ConfigureAwait(false);
+        if (await session.EnsureIndexFormatAsync(cancellationToken).ConfigureAwait(false))
+        {
+            Logger.LogInformation("Evaluation index rebuilt in format {IndexFormat}", PatientFactsCodec.Format);
+        }
+
+        await session.CommitAsync(cancellationToken).ConfigureAwait(false);
+    }
+
+    /// <summary>
+    /// Re-derives every index entry from the current stored resources, in one transaction: for use after a change to
+    /// what the fact extractor keeps. Writers wait until it ends.
+    /// </summary>
+    public async System.Threading.Tasks.Task RebuildIndexAsync(CancellationToken cancellationToken)
+    {
+        await using var session = (SqlStoreSession)await BeginWriteAsync(cancellationToken).ConfigureAwait(false);
+        await session.RebuildIndexAsync(cancellationToken).ConfigureAwait(false);
+        await session.CommitAsync(cancellationToken).ConfigureAwait(false);
     }
 
     public async System.Threading.Tasks.Task<bool> IsReadyAsync(CancellationToken cancellationToken)
@@ -335,7 +363,7 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         await command.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
     }
 
-    private static StoredResource ToStored(DbDataReader reader, string resourceType, string id) => new(
+    internal static StoredResource ToStored(DbDataReader reader, string resourceType, string id) => new(
         resourceType,
         id,
         reader.GetInt32(0),

@@ -10,7 +10,9 @@ namespace MeasureEval.Storage.Common;
 /// <summary>
 /// One write transaction. Statements are created once per session and reused with new parameter values, and index
 /// entries are changed in memory and written back in batches, so a bulk ingest of many resources into one session
-/// pays per resource only for its own rows.
+/// pays per resource only for its own rows. Where the provider has command batches (PostgreSQL), writes that return
+/// nothing wait in a queue and travel with the session's next query or its commit: one round trip per resource.
+/// An error in a queued write therefore surfaces at that later call; the session is unusable afterwards either way.
 /// </summary>
 internal sealed class SqlStoreSession : IStoreSession
 {
@@ -23,6 +25,7 @@ internal sealed class SqlStoreSession : IStoreSession
     private readonly IDisposable? _writer;
     private readonly Dictionary<string, DbCommand> _commands = new(StringComparer.Ordinal);
     private readonly Dictionary<string, PatientIndexEntry> _entries = new(StringComparer.Ordinal);
+    private readonly List<(string Sql, object?[] Values)> _queued = [];
     private bool _finished;
 
     public SqlStoreSession(SqlResourceStore store, DbConnection connection, DbTransaction transaction, IDisposable? writer)
@@ -105,20 +108,25 @@ internal sealed class SqlStoreSession : IStoreSession
     public async System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, CancellationToken cancellationToken)
     {
         EnsureOpen();
-        var command = Prepared(StoreSql.ReadCurrent, resourceType, id);
-        return await SqlResourceStore.ReadOneAsync(command, resourceType, id, cancellationToken).ConfigureAwait(false);
+        return await QueryAsync(
+            StoreSql.ReadCurrent,
+            [resourceType, id],
+            async (reader, ct) => await reader.ReadAsync(ct).ConfigureAwait(false) ? SqlResourceStore.ToStored(reader, resourceType, id) : null,
+            cancellationToken).ConfigureAwait(false);
     }
 
-    public System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken)
+    public async System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken)
     {
         EnsureOpen();
-        return SqlResourceStore.SearchAsync(_connection, _transaction, query, cancellationToken);
+        await SendQueuedAsync(cancellationToken).ConfigureAwait(false);
+        return await SqlResourceStore.SearchAsync(_connection, _transaction, query, cancellationToken).ConfigureAwait(false);
     }
 
     public async System.Threading.Tasks.Task CommitAsync(CancellationToken cancellationToken)
     {
         EnsureOpen();
         await FlushIndexAsync(cancellationToken).ConfigureAwait(false);
+        await SendQueuedAsync(cancellationToken).ConfigureAwait(false);
         await _transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
         _finished = true;
     }
@@ -140,6 +148,79 @@ internal sealed class SqlStoreSession : IStoreSession
         {
             _finished = true;
             _writer?.Dispose();
+        }
+    }
+
+    /// <summary>Rebuilds the index unless it is already in the codec's format; true when it rebuilt.</summary>
+    internal async System.Threading.Tasks.Task<bool> EnsureIndexFormatAsync(CancellationToken cancellationToken)
+    {
+        EnsureOpen();
+        if (await IndexFormatAsync(cancellationToken).ConfigureAwait(false) == PatientFactsCodec.Format)
+        {
+            return false;
+        }
+
+        await LockForRebuildAsync(cancellationToken).ConfigureAwait(false);
+
+        // Another process may have rebuilt it while this one waited for the lock.
+        if (await IndexFormatAsync(cancellationToken).ConfigureAwait(false) == PatientFactsCodec.Format)
+        {
+            return false;
+        }
+
+        await RebuildCoreAsync(cancellationToken).ConfigureAwait(false);
+        return true;
+    }
+
+    internal async System.Threading.Tasks.Task RebuildIndexAsync(CancellationToken cancellationToken)
+    {
+        EnsureOpen();
+        await LockForRebuildAsync(cancellationToken).ConfigureAwait(false);
+        await RebuildCoreAsync(cancellationToken).ConfigureAwait(false);
+    }
+
+    private async System.Threading.Tasks.Task RebuildCoreAsync(CancellationToken cancellationToken)
+    {
+        await FlushIndexAsync(cancellationToken).ConfigureAwait(false);
+        await RunAsync([("DELETE FROM patient_index", [])], cancellationToken).ConfigureAwait(false);
+
+        // Read on a second connection: this one is busy writing. It sees the committed resources, which the lock keeps
+        // from changing until this transaction ends.
+        var types = FactExtractor.IndexedTypes.Order(StringComparer.Ordinal).ToArray<object?>();
+        await using (var reader = await _store.OpenReaderAsync(cancellationToken).ConfigureAwait(false))
+        await using (var select = SqlResourceStore.Command(reader, null, StoreSql.CurrentIndexedResources(types.Length), types))
+        await using (var rows = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false))
+        {
+            while (await rows.ReadAsync(cancellationToken).ConfigureAwait(false))
+            {
+                var (type, id) = (rows.GetString(0), rows.GetString(1));
+                var contribution = FactExtractor.TryExtract(FhirJson.Parse<Resource>(rows.GetString(2)), out var extracted) ? extracted : null;
+                await RunAsync([(StoreSql.SetIndexPatient, [type, id, contribution?.PatientId])], cancellationToken).ConfigureAwait(false);
+                if (contribution is not null)
+                {
+                    (await EntryAsync(contribution.PatientId, cancellationToken).ConfigureAwait(false)).Add(contribution);
+                }
+            }
+        }
+
+        await FlushIndexAsync(cancellationToken).ConfigureAwait(false);
+        await RunAsync(
+            [("DELETE FROM index_state", []), ("INSERT INTO index_state (format) VALUES (@p0)", [(int)PatientFactsCodec.Format])],
+            cancellationToken).ConfigureAwait(false);
+    }
+
+    private async System.Threading.Tasks.Task<int?> IndexFormatAsync(CancellationToken cancellationToken) =>
+        await QueryAsync<int?>(
+            StoreSql.ReadIndexFormat,
+            [],
+            async (reader, ct) => await reader.ReadAsync(ct).ConfigureAwait(false) && !reader.IsDBNull(0) ? reader.GetInt32(0) : null,
+            cancellationToken).ConfigureAwait(false);
+
+    private async System.Threading.Tasks.Task LockForRebuildAsync(CancellationToken cancellationToken)
+    {
+        if (_store.LockForRebuildSql is { } lockSql)
+        {
+            await QueryAsync(lockSql, [], (_, _) => System.Threading.Tasks.Task.FromResult(true), cancellationToken).ConfigureAwait(false);
         }
     }
 
@@ -201,22 +282,27 @@ internal sealed class SqlStoreSession : IStoreSession
     {
         if (_store.ReleaseAbsentSql is { } release)
         {
-            await ExecuteAsync(release, cancellationToken, type, id).ConfigureAwait(false);
+            await RunAsync([(release, [type, id])], cancellationToken).ConfigureAwait(false);
         }
     }
 
     /// <summary>The current row, locked for this transaction; null when the resource was never stored.</summary>
     private async System.Threading.Tasks.Task<CurrentRow?> LockCurrentAsync(string type, string id, CancellationToken cancellationToken)
     {
-        var command = Prepared(_store.LockCurrentSql, type, id);
-        await using var reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
-        if (!await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
-        {
-            return null;
-        }
+        return await QueryAsync<CurrentRow?>(
+            _store.LockCurrentSql,
+            [type, id],
+            async (reader, ct) =>
+            {
+                if (!await reader.ReadAsync(ct).ConfigureAwait(false))
+                {
+                    return null;
+                }
 
-        var version = reader.GetInt32(0);
-        return version == 0 ? null : new CurrentRow(version, reader.GetBoolean(1), reader.IsDBNull(2) ? null : reader.GetString(2));
+                var version = reader.GetInt32(0);
+                return version == 0 ? null : new CurrentRow(version, reader.GetBoolean(1), reader.IsDBNull(2) ? null : reader.GetString(2));
+            },
+            cancellationToken).ConfigureAwait(false);
     }
 
     private async System.Threading.Tasks.Task<PatientIndexEntry> EntryAsync(string patientId, CancellationToken cancellationToken)
@@ -231,16 +317,13 @@ internal sealed class SqlStoreSession : IStoreSession
             await FlushIndexAsync(cancellationToken).ConfigureAwait(false);
         }
 
-        PatientFacts? stored = null;
-        var command = Prepared(_store.LockIndexEntrySql, patientId);
-        await using (var reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false))
-        {
-            if (await reader.ReadAsync(cancellationToken).ConfigureAwait(false) && !reader.IsDBNull(0))
-            {
-                stored = PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0));
-            }
-        }
-
+        var stored = await QueryAsync(
+            _store.LockIndexEntrySql,
+            [patientId],
+            async (reader, ct) => await reader.ReadAsync(ct).ConfigureAwait(false) && !reader.IsDBNull(0)
+                ? PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0))
+                : null,
+            cancellationToken).ConfigureAwait(false);
         entry = PatientIndexEntry.From(stored);
         _entries.Add(patientId, entry);
         return entry;
@@ -268,39 +351,80 @@ internal sealed class SqlStoreSession : IStoreSession
     }
 
     /// <summary>
-    /// Runs statements that return nothing: as one batch where the provider has batches (PostgreSQL: one round trip),
-    /// otherwise one by one through the session's reused commands (SQLite: in-process calls, nothing to save).
+    /// Runs statements that return nothing: queued to travel with the next query where the provider has batches,
+    /// otherwise at once through the session's reused commands (SQLite: in-process calls, no round trips to save).
     /// </summary>
     private async System.Threading.Tasks.Task RunAsync(IReadOnlyList<(string Sql, object?[] Values)> statements, CancellationToken cancellationToken)
     {
-        if (!_connection.CanCreateBatch)
+        if (_connection.CanCreateBatch)
         {
-            foreach (var (sql, values) in statements)
-            {
-                await ExecuteAsync(sql, cancellationToken, values).ConfigureAwait(false);
-            }
-
+            _queued.AddRange(statements);
             return;
         }
 
-        await using var batch = _connection.CreateBatch();
-        batch.Transaction = _transaction;
         foreach (var (sql, values) in statements)
         {
-            var command = batch.CreateBatchCommand();
-            command.CommandText = sql;
-            for (var i = 0; i < values.Length; i++)
-            {
-                var parameter = command.CreateParameter();
-                parameter.ParameterName = "p" + i.ToString(CultureInfo.InvariantCulture);
-                parameter.Value = values[i] ?? DBNull.Value;
-                command.Parameters.Add(parameter);
-            }
+            await ExecuteAsync(sql, cancellationToken, values).ConfigureAwait(false);
+        }
+    }
 
-            batch.BatchCommands.Add(command);
+    /// <summary>Runs a query after the queued writes, in the same round trip when there are any.</summary>
+    private async System.Threading.Tasks.Task<T> QueryAsync<T>(
+        string sql, object?[] values, Func<DbDataReader, CancellationToken, System.Threading.Tasks.Task<T>> read, CancellationToken cancellationToken)
+    {
+        if (_queued.Count == 0)
+        {
+            await using var reader = await Prepared(sql, values).ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+            return await read(reader, cancellationToken).ConfigureAwait(false);
         }
 
-        await batch.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+        await using var batch = TakeQueued();
+        batch.BatchCommands.Add(BatchCommand(batch, sql, values));
+        await using var batchReader = await batch.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
+
+        // The queued writes return no rows; the query's rows are the last result.
+        while (batchReader.FieldCount == 0 && await batchReader.NextResultAsync(cancellationToken).ConfigureAwait(false))
+        {
+        }
+
+        return await read(batchReader, cancellationToken).ConfigureAwait(false);
+    }
+
+    private async System.Threading.Tasks.Task SendQueuedAsync(CancellationToken cancellationToken)
+    {
+        if (_queued.Count > 0)
+        {
+            await using var batch = TakeQueued();
+            await batch.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+        }
+    }
+
+    private DbBatch TakeQueued()
+    {
+        var batch = _connection.CreateBatch();
+        batch.Transaction = _transaction;
+        foreach (var (sql, values) in _queued)
+        {
+            batch.BatchCommands.Add(BatchCommand(batch, sql, values));
+        }
+
+        _queued.Clear();
+        return batch;
+    }
+
+    private static DbBatchCommand BatchCommand(DbBatch batch, string sql, object?[] values)
+    {
+        var command = batch.CreateBatchCommand();
+        command.CommandText = sql;
+        for (var i = 0; i < values.Length; i++)
+        {
+            var parameter = command.CreateParameter();
+            parameter.ParameterName = "p" + i.ToString(CultureInfo.InvariantCulture);
+            parameter.Value = values[i] ?? DBNull.Value;
+            command.Parameters.Add(parameter);
+        }
+
+        return command;
     }
 
     private async System.Threading.Tasks.Task ExecuteAsync(string sql, CancellationToken cancellationToken, params object?[] values) =>

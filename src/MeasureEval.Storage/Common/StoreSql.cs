@@ -49,4 +49,21 @@ internal static class StoreSql
         """;
 
     public const string DeleteIndexEntry = "DELETE FROM patient_index WHERE patient_id = @p0";
+
+    public const string ReadIndexFormat = "SELECT MAX(format) FROM index_state";
+
+    /// <summary>(type, id, index_patient_id).</summary>
+    public const string SetIndexPatient = "UPDATE resources SET index_patient_id = @p2 WHERE type = @p0 AND id = @p1";
+
+    /// <summary>
+    /// Current resources of the indexed types (@p0 …), sorted by patient on the small rows only, so a rebuild mostly
+    /// builds each entry once. The order only saves work: an entry met again is read back and extended.
+    /// </summary>
+    public static string CurrentIndexedResources(int typeCount) => $"""
+        SELECT r.type, r.id, v.json FROM (
+            SELECT type, id, version, patient_id FROM resources
+            WHERE deleted = FALSE AND version > 0 AND type IN ({string.Join(", ", Enumerable.Range(0, typeCount).Select(i => "@p" + i.ToString(System.Globalization.CultureInfo.InvariantCulture)))})
+            ORDER BY patient_id, type, id) r
+        JOIN resource_versions v ON v.type = r.type AND v.id = r.id AND v.version = r.version
+        """;
 }

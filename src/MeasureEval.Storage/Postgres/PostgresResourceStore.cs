@@ -44,6 +44,9 @@ public sealed class PostgresResourceStore : SqlResourceStore
 
     internal override string? ReleaseAbsentSql => "DELETE FROM resources WHERE type = @p0 AND id = @p1 AND version = 0";
 
+    // Conflicts with every writer's ROW EXCLUSIVE and with itself, not with readers.
+    internal override string? LockForRebuildSql => "LOCK TABLE resources IN SHARE ROW EXCLUSIVE MODE";
+
     // Same idea for a patient's entry: a NULL placeholder when new, removed or filled when the session flushes.
     internal override string LockIndexEntrySql => """
         INSERT INTO patient_index (patient_id, facts) VALUES (@p0, NULL)

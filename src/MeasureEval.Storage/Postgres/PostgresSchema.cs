@@ -44,5 +44,8 @@ internal static class PostgresSchema
             facts bytea
         );
         """,
+        """
+        CREATE TABLE index_state (format integer NOT NULL);
+        """,
     ];
 }

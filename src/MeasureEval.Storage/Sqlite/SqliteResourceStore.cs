@@ -36,6 +36,8 @@ public sealed class SqliteResourceStore : SqlResourceStore
 
     internal override string? ReleaseAbsentSql => null;
 
+    internal override string? LockForRebuildSql => null;
+
     internal override string LockIndexEntrySql => "SELECT facts FROM patient_index WHERE patient_id = @p0";
 
     protected override System.Threading.Tasks.Task PrepareDatabaseAsync(CancellationToken cancellationToken)

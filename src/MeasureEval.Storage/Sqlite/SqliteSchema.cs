@@ -44,5 +44,8 @@ internal static class SqliteSchema
             facts BLOB NOT NULL
         ) WITHOUT ROWID;
         """,
+        """
+        CREATE TABLE index_state (format INTEGER NOT NULL);
+        """,
     ];
 }

@@ -2,6 +2,7 @@ using MeasureEval.Storage.Common;
 using MeasureEval.Storage.Postgres;
 using MeasureEval.Testing;
 using Microsoft.Extensions.Logging.Abstractions;
+using Npgsql;
 
 namespace MeasureEval.Storage.Tests.Postgres;
 
@@ -22,10 +23,21 @@ public sealed class PostgresResourceStoreTests(PostgresServer server) : Resource
         Assert.True(await second.IsReadyAsync(default));
     }
 
+    private string? _connectionString;
+
+    protected override async System.Threading.Tasks.Task ExecuteSqlAsync(string sql)
+    {
+        await using var connection = new NpgsqlConnection(_connectionString);
+        await connection.OpenAsync();
+        await using var command = new NpgsqlCommand(sql, connection);
+        await command.ExecuteNonQueryAsync();
+    }
+
     protected override async System.Threading.Tasks.Task<SqlResourceStore> CreateStoreAsync()
     {
         Skip.IfNot(server.IsAvailable, server.UnavailableReason);
-        var store = new PostgresResourceStore(await server.CreateSchemaAsync(), Time, NullLogger<PostgresResourceStore>.Instance);
+        _connectionString = await server.CreateSchemaAsync();
+        var store = new PostgresResourceStore(_connectionString, Time, NullLogger<PostgresResourceStore>.Instance);
         await store.InitializeAsync(default);
         return store;
     }

@@ -1,5 +1,6 @@
 using MeasureEval.Storage.Common;
 using MeasureEval.Storage.Sqlite;
+using Microsoft.Data.Sqlite;
 using Microsoft.Extensions.Logging.Abstractions;
 
 namespace MeasureEval.Storage.Tests.Sqlite;
@@ -29,6 +30,15 @@ public sealed class SqliteResourceStoreTests : ResourceStoreContract, IDisposabl
         await using var store = new SqliteResourceStore($"Data Source={Path.Combine(_directory.FullName, "empty.db")}", Time, NullLogger<SqliteResourceStore>.Instance);
 
         Assert.False(await store.IsReadyAsync(default));
+    }
+
+    protected override async System.Threading.Tasks.Task ExecuteSqlAsync(string sql)
+    {
+        await using var connection = new SqliteConnection($"Data Source={Path.Combine(_directory.FullName, "store.db")};Pooling=False");
+        await connection.OpenAsync();
+        await using var command = connection.CreateCommand();
+        command.CommandText = sql;
+        await command.ExecuteNonQueryAsync();
     }
 
     protected override async System.Threading.Tasks.Task<SqlResourceStore> CreateStoreAsync()
