@@ -40,7 +40,7 @@ public sealed class SqliteResourceStore : SqlResourceStore
 
     internal override string LockIndexEntrySql => "SELECT facts FROM patient_index WHERE patient_id = @p0";
 
-    protected override System.Threading.Tasks.Task PrepareDatabaseAsync(CancellationToken cancellationToken)
+    protected override async System.Threading.Tasks.Task PrepareDatabaseAsync(CancellationToken cancellationToken)
     {
         var directory = Path.GetDirectoryName(Path.GetFullPath(DataSource));
         if (!string.IsNullOrEmpty(directory))
@@ -48,7 +48,11 @@ public sealed class SqliteResourceStore : SqlResourceStore
             Directory.CreateDirectory(directory);
         }
 
-        return System.Threading.Tasks.Task.CompletedTask;
+        // The journal mode is stored in the file: set once, it holds for every later connection.
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var wal = connection.CreateCommand();
+        wal.CommandText = "PRAGMA journal_mode = WAL";
+        await wal.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
     }
 
     protected override async ValueTask<DbConnection> OpenConnectionAsync(CancellationToken cancellationToken)
@@ -59,8 +63,8 @@ public sealed class SqliteResourceStore : SqlResourceStore
             await connection.OpenAsync(cancellationToken).ConfigureAwait(false);
             await using var pragmas = connection.CreateCommand();
 
-            // journal_mode is stored in the file; the others hold per connection.
-            pragmas.CommandText = "PRAGMA journal_mode = WAL; PRAGMA synchronous = NORMAL; PRAGMA busy_timeout = 10000; PRAGMA cache_size = -65536;";
+            // These hold per connection.
+            pragmas.CommandText = "PRAGMA synchronous = NORMAL; PRAGMA busy_timeout = 10000; PRAGMA cache_size = -65536;";
             await pragmas.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
             return connection;
         }

@@ -46,6 +46,8 @@ public sealed class ColorectalCancerScreeningTests
     // Numerator: colonoscopy (SNOMED CT 73761001, 444783004) during MP or the 9 years before, i.e. from 2017-01-01 (USPSTF 2021, Table 1: every 10 years)
     [InlineData("colonoscopy-first-day-of-window", 1, 1, 0, 0, 1)] // periodStart - 9 years = 2017-01-01, inclusive
     [InlineData("colonoscopy-day-before-window", 1, 1, 0, 0, 0)] // one day before the window
+    [InlineData("colonoscopy-window-start-rolls-over", 1, 1, 0, 0, 1, "2028-02-29", "2029-02-28")] // MP from 2028-02-29: - 9 years = 2019-02-29 -> rolls to 2019-03-01, inclusive
+    [InlineData("colonoscopy-before-rolled-window-start", 1, 1, 0, 0, 0, "2028-02-29", "2029-02-28")] // MP from 2028-02-29: the window starts 2019-03-01
     [InlineData("colonoscopy-alternate-code", 1, 1, 0, 0, 1)] // 444783004 is listed
     [InlineData("colonoscopy-partial-year-inside", 1, 1, 0, 0, 1)] // partial date 2017 stands for the whole year, which lies inside the window
     [InlineData("colonoscopy-partial-year-outside", 1, 1, 0, 0, 0)] // 2016 lies before the window

@@ -25,6 +25,20 @@ public sealed class SqliteResourceStoreTests : ResourceStoreContract, IDisposabl
     }
 
     [Fact]
+    public async System.Threading.Tasks.Task InitializeAsync_NewFile_UsesWriteAheadLog()
+    {
+        await using var store = await CreateStoreAsync();
+
+        await using var connection = new SqliteConnection($"Data Source={Path.Combine(_directory.FullName, "store.db")};Pooling=False");
+        await connection.OpenAsync();
+        await using var command = connection.CreateCommand();
+        command.CommandText = "PRAGMA journal_mode";
+
+        // SQLite documents journal_mode=WAL as persistent: a later connection reports it without setting it.
+        Assert.Equal("wal", await command.ExecuteScalarAsync());
+    }
+
+    [Fact]
     public async System.Threading.Tasks.Task IsReadyAsync_BeforeInitialize_ReturnsFalse()
     {
         await using var store = new SqliteResourceStore($"Data Source={Path.Combine(_directory.FullName, "empty.db")}", Time, NullLogger<SqliteResourceStore>.Instance);
