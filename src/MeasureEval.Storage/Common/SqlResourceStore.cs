@@ -356,7 +356,9 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         for (var i = 0; i < values.Length; i++)
         {
             var parameter = command.CreateParameter();
-            parameter.ParameterName = "p" + i.ToString(CultureInfo.InvariantCulture);
+
+            // With its prefix: Microsoft.Data.Sqlite otherwise tries "@", ":" and "$" on every execution.
+            parameter.ParameterName = "@p" + i.ToString(CultureInfo.InvariantCulture);
             parameter.Value = values[i] ?? DBNull.Value;
             command.Parameters.Add(parameter);
         }

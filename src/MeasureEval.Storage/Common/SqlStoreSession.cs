@@ -423,7 +423,7 @@ internal sealed class SqlStoreSession : IStoreSession
         for (var i = 0; i < values.Length; i++)
         {
             var parameter = command.CreateParameter();
-            parameter.ParameterName = "p" + i.ToString(CultureInfo.InvariantCulture);
+            parameter.ParameterName = "@p" + i.ToString(CultureInfo.InvariantCulture);
             parameter.Value = values[i] ?? DBNull.Value;
             command.Parameters.Add(parameter);
         }
