@@ -1,4 +1,5 @@
 using MeasureEval.Api.Analytics;
+using MeasureEval.Api.CareGaps;
 using MeasureEval.Api.Hosting;
 using MeasureEval.Api.Logging;
 using MeasureEval.Api.Measures;
@@ -10,12 +11,14 @@ builder.Services.AddMeasureEvalStorage();
 builder.Services.AddMeasureEvalApi();
 builder.Services.AddMeasureEvalMeasures();
 builder.Services.AddMeasureEvalAnalytics();
+builder.Services.AddMeasureEvalCareGaps();
 
 var app = builder.Build();
 app.UseMeasureEvalApi();
 app.MapMeasureEndpoints();
 app.MapMeasureEvalApi();
 app.MapReportEndpoints();
+app.MapCareGapEndpoints();
 app.Run();
 
 /// <summary>Entry point; public so that tests can host it with WebApplicationFactory.</summary>

@@ -89,14 +89,19 @@ public sealed class PostgresServer : IAsyncLifetime
     public async System.Threading.Tasks.Task DisposeAsync()
     {
         NpgsqlConnection.ClearAllPools();
-        if (_started && _dataDirectory is not null)
+        try
         {
-            await RunPostgresToolAsync("pg_ctl", ["-D", _dataDirectory, "-m", "immediate", "-w", "stop"]).ConfigureAwait(false);
+            if (_started && _dataDirectory is not null)
+            {
+                await RunPostgresToolAsync("pg_ctl", ["-D", _dataDirectory, "-m", "immediate", "-w", "stop"]).ConfigureAwait(false);
+            }
         }
-
-        if (_root is not null)
+        finally
         {
-            Directory.Delete(_root, recursive: true);
+            if (_root is not null)
+            {
+                Directory.Delete(_root, recursive: true);
+            }
         }
     }
 

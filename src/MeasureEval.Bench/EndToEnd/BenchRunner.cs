@@ -48,7 +48,7 @@ internal static class BenchRunner
             var db = Path.Combine(work, $"pop-{size}.db");
             if (ingest || !File.Exists(db))
             {
-                if (size == sizes[0])
+                if (ingest && size == sizes[0])
                 {
                     ParseRates(ndjson, repeats, Line);
                 }
@@ -58,7 +58,7 @@ internal static class BenchRunner
 
             if (evaluate)
             {
-                await EvaluatePassesAsync($"sqlite:{db}", $"SQLite, {size:N0} patients", measures, repeats, Line);
+                EvaluatePasses($"sqlite:{db}", $"SQLite, {size:N0} patients", measures, repeats, Line);
             }
         }
 
@@ -74,7 +74,7 @@ internal static class BenchRunner
                 var ndjson = Path.Combine(work, $"pop-{sizes[0]}");
                 var store = $"postgres:{server.ConnectionString}";
                 await IngestAsync(store, ndjson, $"PostgreSQL ingest, {sizes[0]:N0} patients", Line);
-                await EvaluatePassesAsync(store, $"PostgreSQL, {sizes[0]:N0} patients", measures, repeats, Line);
+                EvaluatePasses(store, $"PostgreSQL, {sizes[0]:N0} patients", measures, repeats, Line);
             }
         }
 
@@ -86,6 +86,10 @@ internal static class BenchRunner
 
         return 0;
     }
+
+    /// <summary>The 1-minute load average: the machine is shared, so figures are read beside it.</summary>
+    private static string LoadAverage() =>
+        File.Exists("/proc/loadavg") ? "load " + File.ReadAllText("/proc/loadavg").Split(' ')[0] : "load n/a";
 
     private static string Arg(string[] args, string name, string fallback)
     {
@@ -148,7 +152,7 @@ internal static class BenchRunner
             }
         });
         var firelyParallel = Median(() => Parallel.ForEach(lines, l => FhirJson.Deserializer.DeserializeResource(l)));
-        line($"parse {lines.Length:N0} resources ({bytes / 1e6:F0} MB): System.Text.Json JsonDocument {lines.Length / stj:N0}/s ({bytes / 1e6 / stj:F0} MB/s); "
+        line($"({LoadAverage()}) parse {lines.Length:N0} resources ({bytes / 1e6:F0} MB): System.Text.Json JsonDocument {lines.Length / stj:N0}/s ({bytes / 1e6 / stj:F0} MB/s); "
             + $"Firely strict 1 thread {lines.Length / firely:N0}/s ({bytes / 1e6 / firely:F1} MB/s); Firely strict all cores {lines.Length / firelyParallel:N0}/s");
     }
 
@@ -172,17 +176,19 @@ internal static class BenchRunner
         }
 
         await resourceStore!.InitializeAsync(CancellationToken.None);
+        var cpu = Process.GetCurrentProcess().TotalProcessorTime;
         var clock = Stopwatch.StartNew();
         var written = await StoreLoader.LoadAsync(resourceStore, ndjson, null, CancellationToken.None);
         var seconds = clock.Elapsed.TotalSeconds;
-        line($"{label}: {written:N0} resources in {seconds:F1} s = {written / seconds:N0} resources/s (parse on all cores, one writer)");
+        var cpuSeconds = (Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds;
+        line($"{label}: {written:N0} resources in {seconds:F1} s = {written / seconds:N0} resources/s (parse on all cores, one writer; CPU {cpuSeconds:F0} s; {LoadAverage()})");
         if (resourceStore is IAsyncDisposable disposable)
         {
             await disposable.DisposeAsync();
         }
     }
 
-    private static async Task EvaluatePassesAsync(string store, string label, string measures, int repeats, Action<string> line)
+    private static void EvaluatePasses(string store, string label, string measures, int repeats, Action<string> line)
     {
         StorePass.Figures Median(string mode)
         {
@@ -190,11 +196,12 @@ internal static class BenchRunner
             return runs[runs.Count / 2];
         }
 
+        var loadBefore = LoadAverage();
         var stream = Median("stream");
         var eval = Median("evaluate");
-        await Task.CompletedTask;
-        line($"{label}: stream index {stream.Seconds:F2} s ({stream.Patients / stream.Seconds:N0} patients/s, peak {stream.PeakWorkingSetBytes / 1048576.0:F0} MiB); "
-            + $"nine measures {eval.Seconds:F2} s ({eval.Patients / eval.Seconds:N0} patients/s, peak {eval.PeakWorkingSetBytes / 1048576.0:F0} MiB, "
+        line($"  ({loadBefore} before, {LoadAverage()} after)");
+        line($"{label}: stream index {stream.Seconds:F2} s ({stream.Patients / stream.Seconds:N0} patients/s, CPU {stream.CpuSeconds:F1} s, peak {stream.PeakWorkingSetBytes / 1048576.0:F0} MiB); "
+            + $"nine measures {eval.Seconds:F2} s ({eval.Patients / eval.Seconds:N0} patients/s, CPU {eval.CpuSeconds:F1} s, peak {eval.PeakWorkingSetBytes / 1048576.0:F0} MiB, "
             + $"{eval.AllocatedBytes / 1e9:F1} GB allocated, GC {eval.Gen0}/{eval.Gen1}/{eval.Gen2}); ratio to streaming {eval.Seconds / stream.Seconds:F2}×");
     }
 

@@ -15,7 +15,7 @@ internal static class StorePass
 {
     public const string Verb = "store-pass";
 
-    public sealed record Figures(string Mode, long Patients, double Seconds, long PeakWorkingSetBytes, long AllocatedBytes, int Gen0, int Gen1, int Gen2);
+    public sealed record Figures(string Mode, long Patients, double Seconds, double CpuSeconds, long PeakWorkingSetBytes, long AllocatedBytes, int Gen0, int Gen1, int Gen2);
 
     public static async Task<int> RunAsync(string[] args)
     {
@@ -51,6 +51,7 @@ internal static class StorePass
         var gen1 = GC.CollectionCount(1);
         var gen2 = GC.CollectionCount(2);
         var allocated = GC.GetTotalAllocatedBytes();
+        var cpu = Process.GetCurrentProcess().TotalProcessorTime;
         var clock = Stopwatch.StartNew();
         long patients = 0;
         if (mode == "stream")
@@ -73,7 +74,7 @@ internal static class StorePass
         clock.Stop();
         using var self = Process.GetCurrentProcess();
         self.Refresh();
-        var figures = new Figures(mode, patients, clock.Elapsed.TotalSeconds, self.PeakWorkingSet64, GC.GetTotalAllocatedBytes() - allocated,
+        var figures = new Figures(mode, patients, clock.Elapsed.TotalSeconds, (self.TotalProcessorTime - cpu).TotalSeconds, self.PeakWorkingSet64, GC.GetTotalAllocatedBytes() - allocated,
             GC.CollectionCount(0) - gen0, GC.CollectionCount(1) - gen1, GC.CollectionCount(2) - gen2);
         Console.Out.WriteLine(JsonSerializer.Serialize(figures));
         if (resourceStore is IAsyncDisposable disposable)

@@ -64,6 +64,12 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
 
     protected virtual System.Threading.Tasks.Task PrepareDatabaseAsync(CancellationToken cancellationToken) => System.Threading.Tasks.Task.CompletedTask;
 
+    /// <summary>Runs after the schema is current, on the migration connection.</summary>
+    protected virtual System.Threading.Tasks.Task OnInitializedAsync(DbConnection connection, CancellationToken cancellationToken) => System.Threading.Tasks.Task.CompletedTask;
+
+    /// <summary>Runs after a session committed <paramref name="resourceWrites"/> resource versions, on its connection.</summary>
+    internal virtual System.Threading.Tasks.Task OnCommittedAsync(DbConnection connection, int resourceWrites, CancellationToken cancellationToken) => System.Threading.Tasks.Task.CompletedTask;
+
     public async System.Threading.Tasks.Task InitializeAsync(CancellationToken cancellationToken)
     {
         await PrepareDatabaseAsync(cancellationToken).ConfigureAwait(false);
@@ -92,6 +98,7 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         }
 
         await transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
+        await OnInitializedAsync(connection, cancellationToken).ConfigureAwait(false);
 
         // An index written in another layout (or by an older build) is rebuilt from the stored resources.
         await using var session = (SqlStoreSession)await BeginWriteAsync(cancellationToken).ConfigureAwait(false);
@@ -300,7 +307,7 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
                 : $"(i.value = {Next(t.Value)} AND i.system = {Next(t.System)})").ToList();
             where.Append(alternatives.Count == 0
                 ? " AND 1 = 0"
-                : $" AND EXISTS (SELECT 1 FROM resource_identifiers i WHERE i.type = r.type AND i.id = r.id AND ({string.Join(" OR ", alternatives)}))");
+                : $" AND r.id IN (SELECT i.id FROM resource_identifiers i WHERE i.type = @p0 AND ({string.Join(" OR ", alternatives)}))");
         }
 
         int total;

@@ -27,6 +27,7 @@ internal sealed class SqlStoreSession : IStoreSession
     private readonly Dictionary<string, PatientIndexEntry> _entries = new(StringComparer.Ordinal);
     private readonly List<(string Sql, object?[] Values)> _queued = [];
     private bool _finished;
+    private int _resourceWrites;
 
     public SqlStoreSession(SqlResourceStore store, DbConnection connection, DbTransaction transaction, IDisposable? writer)
     {
@@ -89,6 +90,7 @@ internal sealed class SqlStoreSession : IStoreSession
 
         var version = current.Version + 1;
         var now = Now();
+        _resourceWrites++;
         var lastUpdated = now.ToUnixTimeMilliseconds();
         await RunAsync(
             [
@@ -129,6 +131,7 @@ internal sealed class SqlStoreSession : IStoreSession
         await SendQueuedAsync(cancellationToken).ConfigureAwait(false);
         await _transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
         _finished = true;
+        await _store.OnCommittedAsync(_connection, _resourceWrites, cancellationToken).ConfigureAwait(false);
     }
 
     public async ValueTask DisposeAsync()
@@ -229,6 +232,7 @@ internal sealed class SqlStoreSession : IStoreSession
     {
         var type = resource.TypeName;
         var now = Now();
+        _resourceWrites++;
         resource.Id = id;
         resource.Meta ??= new Meta();
         resource.Meta.VersionId = version.ToString(CultureInfo.InvariantCulture);

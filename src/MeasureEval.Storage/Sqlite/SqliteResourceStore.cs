@@ -12,7 +12,11 @@ namespace MeasureEval.Storage.Sqlite;
 public sealed class SqliteResourceStore : SqlResourceStore
 {
     private readonly string _connectionString;
+    /// <summary>Resource versions written after which planner statistics are refreshed.</summary>
+    private const int OptimizeAfterWrites = 1000;
+
     private readonly SemaphoreSlim _writer = new(1, 1);
+    private int _writesSinceOptimize;
 
     public SqliteResourceStore(string connectionString, TimeProvider timeProvider, ILogger<SqliteResourceStore> logger)
         : base(timeProvider, logger)
@@ -40,7 +44,7 @@ public sealed class SqliteResourceStore : SqlResourceStore
 
     internal override string LockIndexEntrySql => "SELECT facts FROM patient_index WHERE patient_id = @p0";
 
-    protected override System.Threading.Tasks.Task PrepareDatabaseAsync(CancellationToken cancellationToken)
+    protected override async System.Threading.Tasks.Task PrepareDatabaseAsync(CancellationToken cancellationToken)
     {
         var directory = Path.GetDirectoryName(Path.GetFullPath(DataSource));
         if (!string.IsNullOrEmpty(directory))
@@ -48,7 +52,28 @@ public sealed class SqliteResourceStore : SqlResourceStore
             Directory.CreateDirectory(directory);
         }
 
-        return System.Threading.Tasks.Task.CompletedTask;
+        // The journal mode is stored in the file: set once, it holds for every later connection.
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var wal = connection.CreateCommand();
+        wal.CommandText = "PRAGMA journal_mode = WAL";
+        await wal.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+    }
+
+    // Without table statistics SQLite prefers scanning a type in id order (no sort) over the patient or lastUpdated
+    // index: a patient search over millions of rows then takes seconds instead of a millisecond. SQLite advises
+    // PRAGMA optimize at start (0x10002: also tables never analyzed) and after large changes; it analyzes only tables
+    // whose size changed much, with a sampling limit, so it stays cheap.
+    protected override async System.Threading.Tasks.Task OnInitializedAsync(DbConnection connection, CancellationToken cancellationToken) =>
+        await RunPragmaAsync(connection, "PRAGMA optimize = 0x10002", cancellationToken).ConfigureAwait(false);
+
+    internal override async System.Threading.Tasks.Task OnCommittedAsync(DbConnection connection, int resourceWrites, CancellationToken cancellationToken)
+    {
+        // Counted across sessions: a store that grows by many small writes needs fresh statistics too.
+        if (Interlocked.Add(ref _writesSinceOptimize, resourceWrites) >= OptimizeAfterWrites)
+        {
+            Interlocked.Exchange(ref _writesSinceOptimize, 0);
+            await RunPragmaAsync(connection, "PRAGMA optimize", cancellationToken).ConfigureAwait(false);
+        }
     }
 
     protected override async ValueTask<DbConnection> OpenConnectionAsync(CancellationToken cancellationToken)
@@ -59,8 +84,8 @@ public sealed class SqliteResourceStore : SqlResourceStore
             await connection.OpenAsync(cancellationToken).ConfigureAwait(false);
             await using var pragmas = connection.CreateCommand();
 
-            // journal_mode is stored in the file; the others hold per connection.
-            pragmas.CommandText = "PRAGMA journal_mode = WAL; PRAGMA synchronous = NORMAL; PRAGMA busy_timeout = 10000; PRAGMA cache_size = -65536;";
+            // These hold per connection.
+            pragmas.CommandText = "PRAGMA synchronous = NORMAL; PRAGMA busy_timeout = 10000; PRAGMA cache_size = -65536;";
             await pragmas.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
             return connection;
         }
@@ -94,6 +119,13 @@ public sealed class SqliteResourceStore : SqlResourceStore
 
         _writer.Dispose();
         return ValueTask.CompletedTask;
+    }
+
+    private static async System.Threading.Tasks.Task RunPragmaAsync(DbConnection connection, string pragma, CancellationToken cancellationToken)
+    {
+        await using var command = connection.CreateCommand();
+        command.CommandText = pragma;
+        await command.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
     }
 
     private sealed class WriterLease(SemaphoreSlim writer) : IDisposable

@@ -37,6 +37,9 @@ public sealed class DepressionScreeningTests
     [InlineData("follow-up-day-3", 1, 1, 0, 0, 0)] // D+3 does not count
     [InlineData("follow-up-day-before", 1, 1, 0, 0, 0)] // D-1 does not count
     [InlineData("follow-up-plan-intent", 1, 1, 0, 0, 1)] // ServiceRequest completed, intent plan counts
+    [InlineData("follow-up-reflex-order-intent", 1, 1, 0, 0, 1)] // reflex-order is a child intent of order
+    [InlineData("follow-up-directive-intent", 1, 1, 0, 0, 0)] // intent directive does not count
+    [InlineData("follow-up-without-authored-on", 1, 1, 0, 0, 0)] // a ServiceRequest without authoredOn has no usable time, reported
     [InlineData("follow-up-proposal-intent", 1, 1, 0, 0, 0)] // intent proposal does not count
     [InlineData("follow-up-draft", 1, 1, 0, 0, 0)] // status draft does not count
     [InlineData("follow-up-procedure-not-done", 1, 1, 0, 0, 0)] // a Procedure must be completed
@@ -94,6 +97,7 @@ public sealed class DepressionScreeningTests
     [Theory]
     [InlineData("birthdate-partial-year-uncertain", FindingCodes.PartialBirthDate, null)]
     [InlineData("screening-issued-only", FindingCodes.NoUsableTime, "Observation/obs-1")]
+    [InlineData("follow-up-without-authored-on", FindingCodes.NoUsableTime, "ServiceRequest/sr-1")]
     public void Evaluate_DataQualityCase(string caseFile, string code, string? resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);

@@ -42,6 +42,7 @@ public sealed class HypertensionBpBelow140Over90Tests
     [InlineData("panel-139-89", 1, 1, 0, 0, 1)] // just under both thresholds
     [InlineData("panel-140-80", 1, 1, 0, 0, 0)] // systolic 140 is not < 140
     [InlineData("panel-130-90", 1, 1, 0, 0, 0)] // diastolic 90 is not < 90
+    [InlineData("panel-amended", 1, 1, 0, 0, 1)] // amended counts
     [InlineData("separate-observations-138-88", 1, 1, 0, 0, 1)] // separate 8480-6 / 8462-4 Observations on one date
     [InlineData("panel-in-kilopascal", 1, 1, 0, 0, 1)] // UCUM: 18 kPa = 135.0 mm[Hg], 11 kPa = 82.5 mm[Hg] (1 mm[Hg] = 133.322 Pa, UCUM table)
     [InlineData("panel-in-kilopascal-high", 1, 1, 0, 0, 0)] // UCUM: 19 kPa = 142.5 mm[Hg], not < 140

@@ -48,6 +48,24 @@ public class EvaluateCommandTests
     }
 
     [Fact]
+    public async System.Threading.Tasks.Task Evaluate_StoreLoadedWithTheDemo_SameCountsAsFromTheFiles()
+    {
+        using var dir = new TempDirectory();
+        var demo = Path.Combine(RepositoryRoot.Path, DemoPopulation.RelativeDirectory);
+        var measures = Path.Combine(RepositoryRoot.Path, "measures");
+        var store = "sqlite:" + Path.Combine(dir.Path, "demo.db");
+        Assert.Equal(0, (await RunAsync("load", "--input", demo, "--store", store)).Exit);
+        Assert.Equal(0, (await RunAsync("evaluate", "--measures", measures, "--period-start", "2026-01-01", "--period-end", "2026-12-31", "--store", store, "--out", Path.Combine(dir.Path, "store"))).Exit);
+        Assert.Equal(0, (await RunAsync("evaluate", "--measures", measures, "--period-start", "2026-01-01", "--period-end", "2026-12-31", "--input", demo, "--out", Path.Combine(dir.Path, "files"))).Exit);
+
+        static IEnumerable<string> Counts(string directory) => Directory.GetFiles(directory, "*.measure-report.json").Order(StringComparer.Ordinal)
+            .Select(f => FhirJson.Parse<MeasureReport>(File.ReadAllText(f)))
+            .SelectMany(r => r.Group[0].Population.Select(p => $"{r.Measure} {p.Code!.Coding[0].Code} {p.Count}"));
+        Assert.Equal(Counts(Path.Combine(dir.Path, "files")), Counts(Path.Combine(dir.Path, "store")));
+        Assert.NotEmpty(Counts(Path.Combine(dir.Path, "store")));
+    }
+
+    [Fact]
     public async System.Threading.Tasks.Task Evaluate_InputAndStoreBothGiven_RefusesWithUsageError()
     {
         using var dir = new TempDirectory();
