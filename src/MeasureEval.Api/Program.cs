@@ -1,18 +1,24 @@
 using MeasureEval.Api.Analytics;
+using MeasureEval.Api.CareGaps;
 using MeasureEval.Api.Hosting;
 using MeasureEval.Api.Logging;
+using MeasureEval.Api.Measures;
 using MeasureEval.Storage;
 
 var builder = WebApplication.CreateBuilder(LoggingSetup.ExpandFlags(args));
 builder.AddMeasureEvalLogging();
 builder.Services.AddMeasureEvalStorage();
 builder.Services.AddMeasureEvalApi();
+builder.Services.AddMeasureEvalMeasures();
 builder.Services.AddMeasureEvalAnalytics();
+builder.Services.AddMeasureEvalCareGaps();
 
 var app = builder.Build();
 app.UseMeasureEvalApi();
+app.MapMeasureEndpoints();
 app.MapMeasureEvalApi();
 app.MapReportEndpoints();
+app.MapCareGapEndpoints();
 app.Run();
 
 /// <summary>Entry point; public so that tests can host it with WebApplicationFactory.</summary>

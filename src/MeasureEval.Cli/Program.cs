@@ -1,3 +1,3 @@
 using MeasureEval.Cli;
 
-return await CliApplication.Build().Parse(args).InvokeAsync();
+return await CliApplication.Build(TimeProvider.System).Parse(args).InvokeAsync();

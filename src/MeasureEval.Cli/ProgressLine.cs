@@ -2,8 +2,8 @@ using System.Diagnostics;
 
 namespace MeasureEval.Cli;
 
-/// <summary>A progress line on stderr for long runs, rewritten at most twice a second; counts only, never patient data.</summary>
-internal sealed class ProgressLine(TextWriter writer, string label, long total) : IProgress<int>
+/// <summary>A progress line on stderr for long runs, rewritten at most twice a second; counts only, never patient data. A total of 0 means unknown.</summary>
+internal sealed class ProgressLine(TextWriter writer, string label, long total, string unit = "patients") : IProgress<int>, IProgress<long>
 {
     private readonly Stopwatch _clock = Stopwatch.StartNew();
     private readonly Lock _gate = new();
@@ -19,7 +19,7 @@ internal sealed class ProgressLine(TextWriter writer, string label, long total) 
         {
             _done = done;
             var now = _clock.ElapsedMilliseconds;
-            if (_lastReport >= 0 && now - _lastReport < 500 && done < total)
+            if (_lastReport >= 0 && now - _lastReport < 500 && (total == 0 || done < total))
             {
                 return;
             }
@@ -46,7 +46,7 @@ internal sealed class ProgressLine(TextWriter writer, string label, long total) 
     {
         _written = _done;
         var seconds = Math.Max(_clock.Elapsed.TotalSeconds, 1e-3);
-        var percent = total == 0 ? 100 : 100.0 * _done / total;
-        writer.Write($"\r{label}: {_done}/{total} patients ({percent:F0} %), {_done / seconds:F0}/s, {seconds:F0} s elapsed   ");
+        var of = total > 0 ? $"/{total} {unit} ({100.0 * _done / total:F0} %)" : $" {unit}";
+        writer.Write($"\r{label}: {_done}{of}, {_done / seconds:F0}/s, {seconds:F0} s elapsed   ");
     }
 }

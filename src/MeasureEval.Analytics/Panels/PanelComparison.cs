@@ -49,23 +49,27 @@ public sealed record PanelComparison(
             panels.Add(new PanelRow(stratum.Code, stratum.Label, rate, limits, position, ToGoal(rate, target, summary.IsInverse)));
         }
 
-        var maxN = panels.Select(r => r.Rate.N).DefaultIfEmpty(0).Max();
-        IReadOnlyList<FunnelLimitSet> curve = p0 is { } target0 && maxN > 0 ? CurveNs(maxN).Select(n => FunnelLimits.At(n, target0)).ToList() : [];
+        var compared = panels.Where(r => r.Limits is not null).Select(r => r.Rate.N).ToList();
+        IReadOnlyList<FunnelLimitSet> curve = p0 is { } target0 && compared.Count > 0
+            ? CurveNs(compared.Min(), compared.Max()).Select(n => FunnelLimits.At(n, target0)).ToList()
+            : [];
         return new PanelComparison(summary.MeasureId, summary.IsInverse, network, target, ToGoal(network, target, summary.IsInverse), panels, curve);
     }
 
     private static int? ToGoal(RateSummary rate, decimal? target, bool inverse) =>
         target is { } t && rate.N > 0 ? GapToGoal.PatientsToClose(rate.Numerator, rate.N, t, inverse) : null;
 
-    // Geometric spacing from n = 5 (limits of tinier panels are mostly 0 and 1) to a little past the largest panel.
-    private static IEnumerable<int> CurveNs(int maxN)
+    // Geometric spacing from the smallest compared panel (at most 5) to a little past the largest, so that every
+    // panel has its limits drawn above and below it.
+    private static IEnumerable<int> CurveNs(int minN, int maxN)
     {
-        var top = Math.Max(10, (int)Math.Ceiling(maxN * 1.1));
+        var bottom = Math.Min(5, minN);
+        var top = Math.Max(bottom + 5, (int)Math.Ceiling(maxN * 1.1));
         var seen = new SortedSet<int>();
         const int steps = 48;
         for (var i = 0; i <= steps; i++)
         {
-            seen.Add((int)Math.Round(5 * Math.Pow(top / 5.0, (double)i / steps)));
+            seen.Add((int)Math.Round(bottom * Math.Pow((double)top / bottom, (double)i / steps)));
         }
 
         return seen;

@@ -1,4 +1,3 @@
-using System.Runtime.CompilerServices;
 using MeasureEval.Analytics.Panels;
 using MeasureEval.Analytics.Summaries;
 using MeasureEval.Analytics.Trends;
@@ -8,8 +7,8 @@ using MeasureEval.Engine;
 namespace MeasureEval.Analytics.Population;
 
 /// <summary>
-/// Runs the engine's population evaluation over the store and turns it into summaries, panel comparisons, trends and
-/// gap lists. Each call streams the patients once; memory grows with the number of strata and periods, not patients.
+/// Runs the engine's population evaluation over the store and turns it into summaries, panel comparisons and trends,
+/// with readable names for panels and payers. Each call streams the patients once; memory grows with the number of strata and periods, not patients.
 /// </summary>
 public sealed class MeasureAnalytics(IResourceStore store, MeasureRepository repository)
 {
@@ -60,43 +59,6 @@ public sealed class MeasureAnalytics(IResourceStore store, MeasureRepository rep
         return [.. summaries.Select(s => MeasureSummary.From(s, labels))];
     }
 
-    /// <summary>Rated patients with an open gap, in patient id order; only those of <paramref name="panel"/> when given.</summary>
-    public async IAsyncEnumerable<GapRow> GapsAsync(
-        MeasureDefinition measure, MeasurementPeriod period, string? panel, [EnumeratorCancellation] CancellationToken cancellationToken)
-    {
-        ArgumentNullException.ThrowIfNull(measure);
-        ArgumentNullException.ThrowIfNull(period);
-        var population = new PopulationEvaluator(new MeasureEvaluator(repository, new StoreRecordSource(store)));
-        var panelId = measure.Stratifiers.FirstOrDefault(s => s.Kind == StratifierKind.Panel)?.Id;
-        var payerId = measure.Stratifiers.FirstOrDefault(s => s.Kind == StratifierKind.Payer)?.Id;
-        var ageId = measure.Stratifiers.FirstOrDefault(s => s.Kind == StratifierKind.AgeBand)?.Id;
-        await foreach (var results in population.EvaluateAsync(store.StreamPatientFactsAsync(null, cancellationToken), [measure], period, cancellationToken)
-            .ConfigureAwait(false))
-        {
-            var result = results[0];
-            if (!result.HasGap(measure.ImprovementNotation))
-            {
-                continue;
-            }
-
-            var rowPanel = StratumOf(result, panelId, PanelComparison.Unattributed);
-            if (panel is not null && !string.Equals(rowPanel, panel, StringComparison.Ordinal))
-            {
-                continue;
-            }
-
-            yield return new GapRow(
-                result.PatientId,
-                rowPanel,
-                StratumOf(result, payerId, "none"),
-                StratumOf(result, ageId, ""),
-                [.. result.Counts.Where(c => c.Missing > 0).Select(c => new GapCount(c.Label, c.Counted, c.Required))]);
-        }
-    }
-
-    private static string StratumOf(PatientResult result, string? stratifierId, string fallback) =>
-        stratifierId is not null && result.Strata.TryGetValue(stratifierId, out var code) ? code : fallback;
-
     // Panel and payer strata are references ("Practitioner/…", "Organization/…"); the report shows the names they carry.
     private async Task<IReadOnlyDictionary<string, string>> LabelsAsync(IEnumerable<PopulationSummary> summaries, CancellationToken cancellationToken)
     {
@@ -112,7 +74,12 @@ public sealed class MeasureAnalytics(IResourceStore store, MeasureRepository rep
             }
         }
 
-        var labels = new Dictionary<string, string>(StringComparer.Ordinal);
+        var labels = new Dictionary<string, string>(StringComparer.Ordinal)
+        {
+            [PanelComparison.Unattributed] = "Unattributed",
+            [Payer.None] = "No coverage",
+            [Payer.SelfPay] = "Self-pay",
+        };
         foreach (var reference in references)
         {
             if (await ReferenceLabels.ResolveAsync(store, reference, cancellationToken).ConfigureAwait(false) is { } label)

@@ -52,7 +52,8 @@ public sealed record FunnelLimitSet(int N, double Target, double Lower998, doubl
 
 /// <summary>
 /// Exact binomial funnel limits around a target proportion p0 (Spiegelhalter DJ, "Funnel plots for comparing
-/// institutional performance", Stat Med 2005;24:1185–1202, Appendix A.1.1). For a unit of size n, the limit at
+/// institutional performance", Stat Med 2005;24:1185–1202, appendix on exact limits — A.1.1 from memory: verify).
+/// For a unit of size n, the limit at
 /// level q is taken from the binomial quantile r_q of Bin(n, p0) — the smallest r with P(R ≤ r) ≥ q — and
 /// interpolated so that the plotted limits are smooth in n:
 ///   α = [P(R ≤ r_q) − q] / [P(R ≤ r_q) − P(R ≤ r_q − 1)],   limit = (r_q − α) / n.

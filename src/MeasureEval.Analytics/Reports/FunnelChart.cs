@@ -55,20 +55,35 @@ public static class FunnelChart
 
         // Network rate and the four limit curves, each with a text label at its right end.
         svg.Append($"<line data-mark=\"network\" x1=\"{Coordinate(Left)}\" y1=\"{Coordinate(Y(network))}\" x2=\"{Coordinate(Width - Right)}\" y2=\"{Coordinate(Y(network))}\" stroke=\"{Palette.Black}\" stroke-width=\"2\"/>");
-        svg.Append($"<text x=\"{Coordinate(Width - Right + 6)}\" y=\"{Coordinate(Y(network) + 4)}\">network {Html(Percent(network))}</text>");
-        Curve(svg, comparison.Curve, l => l.Upper998, X, Y, "limit-99.8", Palette.Vermillion, "2 3", "99.8 % upper");
-        Curve(svg, comparison.Curve, l => l.Upper95, X, Y, "limit-95", Palette.Blue, "8 4", "95 % upper");
-        Curve(svg, comparison.Curve, l => l.Lower95, X, Y, "limit-95", Palette.Blue, "8 4", "95 % lower");
-        Curve(svg, comparison.Curve, l => l.Lower998, X, Y, "limit-99.8", Palette.Vermillion, "2 3", "99.8 % lower");
+        svg.Append($"<text x=\"{Coordinate(Left + 6)}\" y=\"{Coordinate(Y(network) - 6)}\" font-weight=\"bold\">network {Html(Percent(network))}</text>");
+        // End labels: the 99.8 % label keeps at least a line away from the 95 % one (both lower limits are often 0).
+        var last = comparison.Curve.Count > 0 ? comparison.Curve[^1] : null;
+        var upper95 = last is null ? 0 : Y(last.Upper95);
+        var lower95 = last is null ? 0 : Y(last.Lower95);
+        Curve(svg, comparison.Curve, l => l.Upper998, X, Y, "limit-99.8", Palette.Vermillion, "2 3", "99.8 % upper", Math.Min(upper95 - 12, last is null ? 0 : Y(last.Upper998)));
+        Curve(svg, comparison.Curve, l => l.Upper95, X, Y, "limit-95", Palette.Blue, "8 4", "95 % upper", upper95);
+        Curve(svg, comparison.Curve, l => l.Lower95, X, Y, "limit-95", Palette.Blue, "8 4", "95 % lower", lower95);
+        Curve(svg, comparison.Curve, l => l.Lower998, X, Y, "limit-99.8", Palette.Vermillion, "2 3", "99.8 % lower", Math.Max(lower95 + 12, last is null ? 0 : Y(last.Lower998)));
 
-        foreach (var panel in compared)
+        // Labels are placed top to bottom and pushed down past any label they would overlap.
+        var placed = new List<(double X1, double X2, double Y)>();
+        foreach (var panel in compared.OrderBy(p => -p.Rate.Rate!.Value).ThenBy(p => p.Rate.N))
         {
             var cx = X(panel.Rate.N);
             var cy = Y(panel.Rate.Rate!.Value);
+            var text = $"{panel.Label} {Percent(panel.Rate.Rate)}";
+            var labelY = cy - 7;
+            var x2 = cx + 9 + (text.Length * 6.2);
+            while (placed.Any(b => b.X1 < x2 && cx + 9 < b.X2 && Math.Abs(b.Y - labelY) < 13))
+            {
+                labelY += 13;
+            }
+
+            placed.Add((cx + 9, x2, labelY));
             var position = panel.Position!.Value;
             svg.Append($"<g data-mark=\"panel\" data-position=\"{PositionCode(position)}\"><title>{Html(panel.Label)}: {Html(RateLabel(panel.Rate))}, {Html(Position(position))}</title>");
             svg.Append(Marker(position, cx, cy));
-            svg.Append($"<text x=\"{Coordinate(cx + 9)}\" y=\"{Coordinate(cy - 7)}\" font-size=\"11\">{Html(panel.Label)} {Html(Percent(panel.Rate.Rate))}</text></g>");
+            svg.Append($"<text x=\"{Coordinate(cx + 9)}\" y=\"{Coordinate(labelY)}\" font-size=\"11\">{Html(text)}</text></g>");
         }
 
         svg.Append("</svg>");
@@ -93,7 +108,7 @@ public static class FunnelChart
 
     private static void Curve(
         StringBuilder svg, IReadOnlyList<FunnelLimitSet> curve, Func<FunnelLimitSet, double> limit, Func<double, double> x, Func<double, double> y,
-        string mark, string colour, string dash, string label)
+        string mark, string colour, string dash, string label, double labelY)
     {
         if (curve.Count == 0)
         {
@@ -102,8 +117,7 @@ public static class FunnelChart
 
         var points = string.Join(' ', curve.Select(l => $"{Coordinate(x(l.N))},{Coordinate(y(limit(l)))}"));
         svg.Append($"<polyline data-mark=\"{mark}\" points=\"{points}\" fill=\"none\" stroke=\"{colour}\" stroke-width=\"1.5\" stroke-dasharray=\"{dash}\"/>");
-        var last = curve[^1];
-        svg.Append($"<text x=\"{Coordinate(x(last.N) + 6)}\" y=\"{Coordinate(y(limit(last)) + 4)}\" font-size=\"11\">{Html(label)}</text>");
+        svg.Append($"<text x=\"{Coordinate(x(curve[^1].N) + 6)}\" y=\"{Coordinate(labelY + 4)}\" font-size=\"11\">{Html(label)}</text>");
     }
 
     private static IEnumerable<int> NiceTicks(int maxN)

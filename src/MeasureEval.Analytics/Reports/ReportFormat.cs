@@ -14,12 +14,13 @@ public static class ReportFormat
     /// <summary>HTML-encodes text for element content and attribute values alike.</summary>
     public static string Html(string? text) => HtmlEncoder.Default.Encode(text ?? string.Empty);
 
-    public static string Percent(double? value) => value is { } v ? (v * 100).ToString("0.0", Invariant) + " %" : "—";
+    // A no-break space keeps "62.5 %" on one line in narrow table cells.
+    public static string Percent(double? value) => value is { } v ? (v * 100).ToString("0.0", Invariant) + "\u00A0%" : "—";
 
     public static string PercentBare(double value) => (value * 100).ToString("0.0", Invariant);
 
     public static string Interval(RateInterval? interval) =>
-        interval is { } i ? $"{PercentBare(i.Lower)}–{PercentBare(i.Upper)} %" : "—";
+        interval is { } i ? $"{PercentBare(i.Lower)}–{PercentBare(i.Upper)}\u00A0%" : "—";
 
     /// <summary>"62.5 % (55.1–69.3 %) · 40/64", or "no rate (n = 0)".</summary>
     public static string RateLabel(RateSummary rate)

@@ -112,7 +112,9 @@ public static class ReportPage
             var limits998 = panel.Limits is { } m ? $"{PercentBare(m.Lower998)}–{PercentBare(m.Upper998)} %" : "—";
             html.Append($"<tr data-panel=\"{Html(panel.Panel)}\"><td>{Html(panel.Label)}</td><td class=\"num\">{Html(Int(r.Numerator))}</td><td class=\"num\">{Html(Int(r.N))}</td><td class=\"num\">{Html(Percent(r.Rate))}</td><td class=\"num\">{Html(Interval(r.Interval))}</td>")
                 .Append($"<td class=\"num\">{Html(limits95)}</td><td class=\"num\">{Html(limits998)}</td><td>{Html(Position(panel.Position))}</td><td class=\"num\">{Html(ToGoal(panel.PatientsToGoal, panels.Inverse))}</td>")
-                .Append($"<td><a href=\"{Html(links.GapsFor(panel.Panel))}\">{Html(Int(r.OpenGaps(panels.Inverse)))} open (CSV)</a></td></tr>");
+                .Append(panel.Panel == PanelComparison.Unattributed
+                    ? $"<td>{Html(Int(r.OpenGaps(panels.Inverse)))} open</td></tr>"
+                    : $"<td><a href=\"{Html(links.GapsFor(panel.Panel))}\">{Html(Int(r.OpenGaps(panels.Inverse)))} open (CSV)</a></td></tr>");
         }
 
         var network = panels.Network;

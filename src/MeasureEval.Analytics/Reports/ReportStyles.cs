@@ -14,7 +14,7 @@ internal static class ReportStyles
         .headline strong { font-size: 2rem; }
         table { border-collapse: collapse; width: 100%; margin: 8px 0 16px; font-size: 0.9rem; }
         th, td { border: 1px solid #BFBFBF; padding: 4px 6px; text-align: left; vertical-align: top; }
-        td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
+        td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
         caption { text-align: left; font-weight: bold; padding-bottom: 4px; }
         svg.chart { width: 100%; height: auto; font-size: 12px; font-family: inherit; }
         .legend { font-size: 0.85rem; color: #404040; }

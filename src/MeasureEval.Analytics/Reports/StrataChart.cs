@@ -54,7 +54,7 @@ public static class StrataChart
             }
 
             var mid = y + (RowHeight / 2);
-            svg.Append($"<text x=\"{Coordinate(LabelWidth - 8)}\" y=\"{Coordinate(mid + 4)}\" text-anchor=\"end\">{Html(row.Label)}</text>");
+            svg.Append($"<text x=\"{Coordinate(LabelWidth - 8)}\" y=\"{Coordinate(mid + 4)}\" text-anchor=\"end\"><title>{Html(row.Label)}</title>{Html(Shorten(row.Label))}</text>");
             if (row.Rate.Rate is { } rate && row.Rate.Interval is { } interval)
             {
                 var fill = row.Overall ? "url(#hatch)" : Palette.SkyBlue;
@@ -74,6 +74,9 @@ public static class StrataChart
         svg.Append("</svg>");
         return svg.ToString();
     }
+
+    // The label column is fixed; a longer name is cut with an ellipsis (the full name is in the tooltip and the table).
+    private static string Shorten(string label) => label.Length <= 30 ? label : string.Concat(label.AsSpan(0, 29), "…");
 
     private static double X(double rate) => LabelWidth + (rate * PlotWidth);
 

@@ -48,7 +48,9 @@ public static class TrendChart
                 line.Add($"{Coordinate(X(i))},{Coordinate(Y(rate))}");
             }
 
-            svg.Append($"<text x=\"{Coordinate(X(i))}\" y=\"{Coordinate(Height - Bottom + 18)}\" text-anchor=\"middle\" font-size=\"11\" fill=\"{Palette.Grey}\">{Html(points[i].Label)}</text>");
+            // Rolling windows are named by their last month on the axis (the axis title says the rest), so twelve fit.
+            var axisLabel = trend.Interval == TrendInterval.Rolling12Months ? points[i].Period.End.ToString("yyyy-MM", System.Globalization.CultureInfo.InvariantCulture) : points[i].Label;
+            svg.Append($"<text x=\"{Coordinate(X(i))}\" y=\"{Coordinate(Height - Bottom + 18)}\" text-anchor=\"middle\" font-size=\"11\" fill=\"{Palette.Grey}\">{Html(axisLabel)}</text>");
         }
 
         if (line.Count > 1)
@@ -79,7 +81,7 @@ public static class TrendChart
             svg.Append($"<text x=\"{Coordinate(cx + 8)}\" y=\"{Coordinate(cy - 10)}\" font-size=\"11\">{Html(label)}</text></g>");
         }
 
-        svg.Append($"<text x=\"{Coordinate((Left + Width - Right) / 2)}\" y=\"{Coordinate(Height - 12)}\" text-anchor=\"middle\" fill=\"{Palette.Grey}\">period ({Html(trend.Interval.Code())})</text>");
+        svg.Append($"<text x=\"{Coordinate((Left + Width - Right) / 2)}\" y=\"{Coordinate(Height - 12)}\" text-anchor=\"middle\" fill=\"{Palette.Grey}\">{Html(trend.Interval == TrendInterval.Quarter ? "quarter" : "12 months ending")}</text>");
         svg.Append("</svg>");
         return svg.ToString();
     }

@@ -18,7 +18,7 @@ public sealed record RateSummary(int InitialPopulation, int Denominator, int Exc
 
     public RateInterval? Interval => Statistics.Wilson(Numerator, N);
 
-    public static RateSummary From(PopulationCounts counts)
+    public static RateSummary From(PopulationTally counts)
     {
         ArgumentNullException.ThrowIfNull(counts);
         return new RateSummary(counts.InitialPopulation, counts.Denominator, counts.DenominatorExclusion, counts.DenominatorException, counts.Numerator);

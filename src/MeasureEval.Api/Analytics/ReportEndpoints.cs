@@ -1,5 +1,5 @@
 using System.Text;
-using System.Text.Json;
+using System.Globalization;
 using MeasureEval.Analytics.Population;
 using MeasureEval.Analytics.Reports;
 using MeasureEval.Api.Errors;
@@ -13,8 +13,8 @@ using Microsoft.AspNetCore.Routing;
 namespace MeasureEval.Api.Analytics;
 
 /// <summary>
-/// Report pages for quality analysts: an index of every measure's rate, one measure's report (HTML, JSON or CSV)
-/// and its gap list. Bad parameters come back as an OperationOutcome naming each one.
+/// Report pages for quality analysts: an index of every measure's rate and one measure's report (HTML, JSON or CSV),
+/// linking to the care-gap export for the patients behind each open gap. Bad parameters come back as an OperationOutcome naming each one.
 /// </summary>
 public static class ReportEndpoints
 {
@@ -29,21 +29,19 @@ public static class ReportEndpoints
         group.MapGet("/", GetIndexAsync).WithName("GetReportIndex").WithSummary("Every measure's rate with its 95 % interval over one period (HTML or JSON).");
         group.MapGet("/measures/{id}", GetMeasureReportAsync).WithName("GetMeasureReport")
             .WithSummary("One measure: rate and strata with intervals, panel funnel and gap-to-target, trend (HTML, JSON or CSV).");
-        group.MapGet("/measures/{id}/gaps", GetGapsAsync).WithName("GetMeasureGaps")
-            .WithSummary("Patients with an open gap for one measure, optionally one panel (CSV or JSON).");
         return app;
     }
 
     public static async Task<Results<ContentHttpResult, FhirResult>> GetIndexAsync(
         HttpRequest request, MeasureAnalytics analytics, TimeProvider time, CancellationToken cancellationToken)
     {
-        if (!ReportQuery.TryParse(request.Query, time, out var query, out var issues) || query.Format == ReportFormat.Csv)
+        if (!ReportQuery.TryParse(request.Query, time, out var query, out var issues) || query.Format == ReportOutput.Csv)
         {
             return FhirResult.Outcome(issues.Count > 0 ? issues : [new FhirIssue(ReportErrorCodes.InvalidParameter, "the index is served as html or json.", "format")]);
         }
 
         var summaries = await analytics.SummariesAsync(query.Period, cancellationToken).ConfigureAwait(false);
-        return query.Format == ReportFormat.Json
+        return query.Format == ReportOutput.Json
             ? TypedResults.Content(ReportJson.Serialize(summaries), JsonType)
             : TypedResults.Content(ReportIndexPage.Render(query.Period, summaries, id => $"/reports/measures/{Uri.EscapeDataString(id)}{query.ToQueryString()}"), HtmlType);
     }
@@ -59,9 +57,9 @@ public static class ReportEndpoints
         var report = await analytics.ReportAsync(measure, query.Period, query.Target, query.Interval, cancellationToken).ConfigureAwait(false);
         switch (query.Format)
         {
-            case ReportFormat.Json:
+            case ReportOutput.Json:
                 return TypedResults.Content(ReportJson.Serialize(report), JsonType);
-            case ReportFormat.Csv:
+            case ReportOutput.Csv:
                 request.HttpContext.Response.Headers.ContentDisposition = $"attachment; filename=\"{measure.Id}-{query.Period.Start:yyyyMMdd}-{query.Period.End:yyyyMMdd}.csv\"";
                 return TypedResults.Content(ReportCsv.Write(report), CsvType);
             default:
@@ -70,74 +68,29 @@ public static class ReportEndpoints
                     $"/reports{query.ToQueryString()}",
                     self + query.ToQueryString("json"),
                     self + query.ToQueryString("csv"),
-                    panel => $"{self}/gaps{query.ToQueryString("csv", panel)}");
+                    panel => CareGapExportLink(measure.Id, query, panel));
                 return TypedResults.Content(ReportPage.Render(report, links), HtmlType);
         }
     }
 
-    public static Results<PushStreamHttpResult, FhirResult> GetGapsAsync(
-        string id, HttpRequest request, MeasureAnalytics analytics, TimeProvider time)
+    /// <summary>
+    /// The care-gap export (the care-gaps endpoints) of one measure's open gaps, for one panel or — for null — everyone.
+    /// A panel stratum code is the Practitioner reference itself.
+    /// </summary>
+    public static string CareGapExportLink(string measureId, ReportQuery query, string? panel)
     {
-        if (!TryPrepare(id, request, analytics, time, out var measure, out var query, out var failure))
+        ArgumentNullException.ThrowIfNull(query);
+        var link = new StringBuilder("/Measure/$care-gaps-export?periodStart=")
+            .Append(query.Period.Start.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture))
+            .Append("&periodEnd=").Append(query.Period.End.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture))
+            .Append("&measureId=").Append(Uri.EscapeDataString(measureId))
+            .Append("&status=open-gap");
+        if (panel is not null)
         {
-            return failure;
+            link.Append("&practitioner=").Append(Uri.EscapeDataString(panel));
         }
 
-        if (query.Format == ReportFormat.Html)
-        {
-            query = query with { Format = ReportFormat.Csv };
-        }
-
-        var json = query.Format == ReportFormat.Json;
-        if (!json)
-        {
-            request.HttpContext.Response.Headers.ContentDisposition = $"attachment; filename=\"{measure.Id}-gaps.csv\"";
-        }
-
-        // Streamed: a gap list can be as long as the population, and rows are written as patients are evaluated.
-        return TypedResults.Stream(
-            async stream =>
-            {
-                var cancellationToken = request.HttpContext.RequestAborted;
-                await using var writer = new StreamWriter(stream, new UTF8Encoding(false));
-                var buffer = new StringBuilder();
-                if (json)
-                {
-                    buffer.Append('[');
-                }
-                else
-                {
-                    GapCsv.WriteHeader(buffer);
-                }
-
-                var first = true;
-                await foreach (var row in analytics.GapsAsync(measure, query.Period, query.Panel, cancellationToken).ConfigureAwait(false))
-                {
-                    if (json)
-                    {
-                        buffer.Append(first ? "\n" : ",\n").Append(JsonSerializer.Serialize(row, ReportJson.Compact));
-                    }
-                    else
-                    {
-                        GapCsv.WriteRow(buffer, row);
-                    }
-
-                    first = false;
-                    if (buffer.Length > 32 * 1024)
-                    {
-                        await writer.WriteAsync(buffer, cancellationToken).ConfigureAwait(false);
-                        buffer.Clear();
-                    }
-                }
-
-                if (json)
-                {
-                    buffer.Append("\n]\n");
-                }
-
-                await writer.WriteAsync(buffer, cancellationToken).ConfigureAwait(false);
-            },
-            json ? JsonType : CsvType);
+        return link.Append("&_format=csv").ToString();
     }
 
     private static bool TryPrepare(

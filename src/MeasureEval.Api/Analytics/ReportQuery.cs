@@ -6,8 +6,8 @@ using Microsoft.AspNetCore.Http;
 
 namespace MeasureEval.Api.Analytics;
 
-/// <summary>The output forms of a report.</summary>
-public enum ReportFormat
+/// <summary>The output forms of a report (HTML page, JSON, CSV).</summary>
+public enum ReportOutput
 {
     Html,
     Json,
@@ -18,7 +18,7 @@ public enum ReportFormat
 /// The query of a report call, checked as a whole: every bad parameter is reported, each with its name as the
 /// issue's expression. Defaults: the current calendar year, no target, quarters, HTML.
 /// </summary>
-public sealed record ReportQuery(MeasurementPeriod Period, decimal? Target, TrendInterval Interval, ReportFormat Format, string? Panel)
+public sealed record ReportQuery(MeasurementPeriod Period, decimal? Target, TrendInterval Interval, ReportOutput Format)
 {
     public static bool TryParse(IQueryCollection query, TimeProvider time, out ReportQuery parsed, out IReadOnlyList<FhirIssue> issues)
     {
@@ -52,30 +52,29 @@ public sealed record ReportQuery(MeasurementPeriod Period, decimal? Target, Tren
             found.Add(new FhirIssue(ReportErrorCodes.InvalidParameter, $"interval must be '{TrendPeriods.QuarterCode}' or '{TrendPeriods.Rolling12MonthsCode}'.", "interval"));
         }
 
-        var format = ReportFormat.Html;
+        var format = ReportOutput.Html;
         switch (Single(query, "format", found))
         {
             case null or "html":
                 break;
             case "json":
-                format = ReportFormat.Json;
+                format = ReportOutput.Json;
                 break;
             case "csv":
-                format = ReportFormat.Csv;
+                format = ReportOutput.Csv;
                 break;
             default:
                 found.Add(new FhirIssue(ReportErrorCodes.InvalidParameter, "format must be html, json or csv.", "format"));
                 break;
         }
 
-        var panel = Single(query, "panel", found);
         issues = found;
-        parsed = new ReportQuery(new MeasurementPeriod(start, end), target, interval, format, string.IsNullOrEmpty(panel) ? null : panel);
+        parsed = new ReportQuery(new MeasurementPeriod(start, end), target, interval, format);
         return found.Count == 0;
     }
 
-    /// <summary>The query string that reproduces this report (without the format and panel).</summary>
-    public string ToQueryString(string? format = null, string? panel = null)
+    /// <summary>The query string that reproduces this report, in <paramref name="format"/> when given.</summary>
+    public string ToQueryString(string? format = null)
     {
         var parts = new List<string>
         {
@@ -91,11 +90,6 @@ public sealed record ReportQuery(MeasurementPeriod Period, decimal? Target, Tren
         if (format is not null)
         {
             parts.Add($"format={format}");
-        }
-
-        if (panel is not null)
-        {
-            parts.Add($"panel={Uri.EscapeDataString(panel)}");
         }
 
         return "?" + string.Join('&', parts);

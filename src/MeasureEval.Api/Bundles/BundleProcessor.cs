@@ -106,9 +106,10 @@ public sealed class BundleProcessor(IResourceStore store, BundlePlanner planner,
                 break;
             }
 
+            var done = ready.ToHashSet();
+            posts.RemoveAll(done.Contains);
             foreach (var plan in ready)
             {
-                posts.Remove(plan);
                 await AssignIdAsync(session, plan, references, cancellationToken);
             }
         }

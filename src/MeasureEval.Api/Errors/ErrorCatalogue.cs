@@ -80,4 +80,7 @@ public static class ErrorCatalogue
         IngestIdMissing, IngestSummary, IngestAborted,
         Unexpected,
     ];
+
+    /// <summary>Every code the service can answer with: these and the feature catalogues kept beside their endpoints.</summary>
+    public static IReadOnlyList<ErrorCode> Published { get; } = [.. All, .. Measures.MeasureErrors.All, .. Analytics.ReportErrorCodes.All];
 }

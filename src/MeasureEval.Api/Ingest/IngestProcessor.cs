@@ -1,4 +1,5 @@
 using System.Globalization;
+using System.Threading.Channels;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Errors;
 using MeasureEval.Core.Storage;
@@ -30,44 +31,58 @@ public sealed partial class IngestProcessor(IResourceStore store, IOptions<Inges
         var refused = 0;
         FhirIssue? failure = null;
         var pending = new List<Resource>(options.Value.BulkBatchSize);
-        await foreach (var item in items.WithCancellation(cancellationToken))
+        // Reading and parsing run ahead on another thread while a batch is written: the two costs overlap.
+        var channel = Channel.CreateBounded<object>(new BoundedChannelOptions(2 * options.Value.BulkBatchSize) { SingleReader = true, SingleWriter = true });
+        using var stop = CancellationTokenSource.CreateLinkedTokenSource(cancellationToken);
+        var producer = ProduceAsync(items, channel.Writer, stop.Token);
+        try
         {
-            if (item is IngestFailure broken)
+            await foreach (var item in channel.Reader.ReadAllAsync(cancellationToken))
             {
-                failure = broken.Issue;
-                break;
-            }
-
-            var unit = (IngestItem)item;
-            var found = unit.Issues.ToList();
-            if (unit.Resource is { } resource && found.Count == 0 && string.IsNullOrEmpty(resource.Id))
-            {
-                var where = unit.Line is { } line ? $"Line {line}: " : "";
-                found.Add(new FhirIssue(ErrorCatalogue.IngestIdMissing, $"{where}the {resource.TypeName} has no id; $ingest upserts by id.", $"{unit.Root}.id", unit.Line));
-            }
-
-            if (found.Count > 0 || unit.Resource is null)
-            {
-                refused++;
-                foreach (var issue in found)
+                if (item is IngestFailure broken)
                 {
-                    if (issues.Count < MaxReportedIssues)
-                    {
-                        issues.Add(issue);
-                    }
+                    failure = broken.Issue;
+                    break;
                 }
 
-                continue;
+                var unit = (IngestItem)item;
+                var found = unit.Issues.ToList();
+                if (unit.Resource is { } resource && found.Count == 0 && string.IsNullOrEmpty(resource.Id))
+                {
+                    var where = unit.Line is { } line ? $"Line {line}: " : "";
+                    found.Add(new FhirIssue(ErrorCatalogue.IngestIdMissing, $"{where}the {resource.TypeName} has no id; $ingest upserts by id.", $"{unit.Root}.id", unit.Line));
+                }
+
+                if (found.Count > 0 || unit.Resource is null)
+                {
+                    refused++;
+                    foreach (var issue in found)
+                    {
+                        if (issues.Count < MaxReportedIssues)
+                        {
+                            issues.Add(issue);
+                        }
+                    }
+
+                    continue;
+                }
+
+                pending.Add(unit.Resource);
+                if (pending.Count >= options.Value.BulkBatchSize)
+                {
+                    await FlushAsync(pending, storedByType, cancellationToken);
+                }
             }
 
-            pending.Add(unit.Resource);
-            if (pending.Count >= options.Value.BulkBatchSize)
-            {
-                await FlushAsync(pending, storedByType, cancellationToken);
-            }
+            await FlushAsync(pending, storedByType, cancellationToken);
+        }
+        finally
+        {
+            // Stops the reader if writing failed; after a normal end it has finished already.
+            await stop.CancelAsync();
+            await producer;
         }
 
-        await FlushAsync(pending, storedByType, cancellationToken);
         if (refused > 0 && issues.Count >= MaxReportedIssues)
         {
             issues.Add(new FhirIssue(ErrorCatalogue.IngestSummary, $"Only the first {MaxReportedIssues} issues are listed."));
@@ -75,6 +90,29 @@ public sealed partial class IngestProcessor(IResourceStore store, IOptions<Inges
 
         LogIngested(storedByType.Values.Sum(), refused, failure is not null);
         return new IngestSummary(storedByType, refused, issues, failure);
+    }
+
+    private static async System.Threading.Tasks.Task ProduceAsync(IAsyncEnumerable<object> items, ChannelWriter<object> writer, CancellationToken cancellationToken)
+    {
+        await System.Threading.Tasks.Task.Yield();
+        try
+        {
+            await foreach (var item in items.WithCancellation(cancellationToken))
+            {
+                await writer.WriteAsync(item, cancellationToken);
+                if (item is IngestFailure)
+                {
+                    break;
+                }
+            }
+
+            writer.Complete();
+        }
+        catch (Exception ex)
+        {
+            // Handed to the consumer, which rethrows it (or has stopped already).
+            writer.Complete(ex);
+        }
     }
 
     private async System.Threading.Tasks.Task FlushAsync(List<Resource> pending, SortedDictionary<string, int> storedByType, CancellationToken cancellationToken)

@@ -18,7 +18,13 @@ internal sealed record Scope(Candidate? Record, IReadOnlyDictionary<string, Cand
 /// </summary>
 internal sealed class EvaluationState
 {
-    private readonly HashSet<(string, string?)> _findingKeys = [];
+    private static readonly IReadOnlyList<DataQualityFinding> NoFindings = [];
+    private static readonly IReadOnlyList<CountDetail> NoCounts = [];
+
+    // Most patients have no finding and no count: allocated on first use.
+    private HashSet<(string, string?)>? _findingKeys;
+    private List<DataQualityFinding>? _findings;
+    private List<CountDetail>? _counts;
 
     public EvaluationState(PreparedPatient patient, MeasurementPeriod period, MeasureDefinition measure, DefinitionCache cache, IRecordSource? records)
     {
@@ -43,9 +49,19 @@ internal sealed class EvaluationState
 
     public List<string> Definitions { get; } = [];
 
-    public List<DataQualityFinding> Findings { get; } = [];
+    public IReadOnlyList<DataQualityFinding> Findings => _findings ?? NoFindings;
 
-    public List<CountDetail> Counts { get; } = [];
+    public IReadOnlyList<CountDetail> Counts => _counts ?? NoCounts;
+
+    public void AddCount(CountDetail count) => (_counts ??= []).Add(count);
+
+    public void AddCounts(IReadOnlyList<CountDetail> counts)
+    {
+        if (counts.Count > 0)
+        {
+            (_counts ??= []).AddRange(counts);
+        }
+    }
 
     /// <summary>Gap reports: when set, every mostRecent and sameDay records the record(s) it chose, met or not.</summary>
     public List<(Criterion Criterion, Scope Scope)>? Chosen { get; init; }
@@ -63,17 +79,17 @@ internal sealed class EvaluationState
 
     public void Find(string code, string message, string? resource)
     {
-        if (_findingKeys.Add((code, resource)))
+        if ((_findingKeys ??= []).Add((code, resource)))
         {
-            Findings.Add(new DataQualityFinding(code, message, resource));
+            (_findings ??= []).Add(new DataQualityFinding(code, message, resource));
         }
     }
 
-    public void AddFindings(IEnumerable<DataQualityFinding> findings)
+    public void AddFindings(IReadOnlyList<DataQualityFinding> findings)
     {
-        foreach (var f in findings)
+        for (var i = 0; i < findings.Count; i++)
         {
-            Find(f.Code, f.Message, f.Resource);
+            Find(findings[i].Code, findings[i].Message, findings[i].Resource);
         }
     }
 }

@@ -17,6 +17,8 @@ public sealed class MeasureEvaluator
     private static readonly HashSet<string> OrderIntents = new(StringComparer.Ordinal) { "order", "original-order", "reflex-order", "filler-order", "instance-order", "plan" };
     private static readonly HashSet<string> OngoingClinical = new(StringComparer.Ordinal) { "active", "recurrence", "relapse" };
 
+    private static readonly IReadOnlyDictionary<string, string> NoStrata = new Dictionary<string, string>();
+
     private readonly IRecordSource? _records;
 
     public MeasureEvaluator(MeasureRepository repository, IRecordSource? records = null)
@@ -91,7 +93,7 @@ public sealed class MeasureEvaluator
         var exclusion = denominator && Population(PopulationKind.DenominatorExclusion, false);
         var numerator = denominator && !exclusion && Population(PopulationKind.Numerator, false);
         var exception = denominator && !exclusion && !numerator && Population(PopulationKind.DenominatorException, false);
-        var strata = ip ? Strata(measure, patient, period) : new Dictionary<string, string>();
+        IReadOnlyDictionary<string, string> strata = ip ? Strata(measure, patient, period) : NoStrata;
         return new PatientResult
         {
             PatientId = patient.Facts.PatientId,
@@ -204,7 +206,7 @@ public sealed class MeasureEvaluator
             }
 
             state.AddFindings(cached.Findings);
-            state.Counts.AddRange(cached.Counts);
+            state.AddCounts(cached.Counts);
             if (cached.Result)
             {
                 state.Evidence.AddRange(cached.Evidence);
@@ -345,7 +347,7 @@ public sealed class MeasureEvaluator
         var label = count.Label ?? count.Retrieve.Label;
         if (label is not null)
         {
-            state.Counts.Add(new CountDetail(label, counted, count.AtLeast));
+            state.AddCount(new CountDetail(label, counted, count.AtLeast));
         }
 
         if (counted < count.AtLeast)
@@ -512,15 +514,15 @@ public sealed class MeasureEvaluator
     }
 
     /// <summary>Counting records of a retrieve (anyOf pooled, in the order of its entries).</summary>
-    private IEnumerable<Candidate> Retrieve(Retrieve retrieve, EvaluationState state, Scope scope)
+    private IEnumerable<Candidate> Retrieve(Retrieve retrieve, EvaluationState state, Scope scope, int sourceIndex = 0)
     {
         if (retrieve.AnyOf is { } parts)
         {
             for (var i = 0; i < parts.Count; i++)
             {
-                foreach (var candidate in Retrieve(parts[i], state, scope))
+                foreach (var candidate in Retrieve(parts[i], state, scope, i))
                 {
-                    yield return candidate with { SourceIndex = i };
+                    yield return candidate;
                 }
             }
 
@@ -585,7 +587,7 @@ public sealed class MeasureEvaluator
                 continue;
             }
 
-            yield return new Candidate(record, retrieve, 0, quantity, value);
+            yield return new Candidate(record, retrieve, sourceIndex, quantity, value);
         }
     }
 

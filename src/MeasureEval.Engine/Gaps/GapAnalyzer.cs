@@ -38,7 +38,7 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
         }
 
         var patient = new PreparedPatient(facts);
-        var evidence = Evidence(measure, patient, period, numerator);
+        var evidence = Evidence(measure, patient, period, numerator, result);
         if (result.HasGap(measure.ImprovementNotation))
         {
             var (actions, allNeeded) = Actions(measure, patient, period, numerator, decrease);
@@ -115,7 +115,7 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
 
     // ---- evidence ----
 
-    private List<GapEvidence> Evidence(MeasureDefinition measure, PreparedPatient patient, MeasurementPeriod period, Criterion numerator)
+    private List<GapEvidence> Evidence(MeasureDefinition measure, PreparedPatient patient, MeasurementPeriod period, Criterion numerator, PatientResult result)
     {
         var items = new List<GapEvidence>();
         var seen = new HashSet<string>(StringComparer.Ordinal);
@@ -144,6 +144,11 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
             {
                 items.Add(new GapEvidence($"{NameOf(latest, alternative)} on {Day(latest.Point!.Value.First)}{(counts ? "" : " (outside the window, does not count)")}", latest.Point!.Value.First, [latest.Reference], counts));
             }
+        }
+
+        foreach (var count in result.Counts)
+        {
+            items.Add(new GapEvidence($"{count.Label}: {count.Counted} of {count.Required} {(count.Required == 1 ? "dose" : "doses")}", null, [], count.Missing == 0));
         }
 
         return items;
@@ -281,7 +286,7 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
                 var missing = detail?.Missing ?? count.AtLeast;
                 var what = count.Label ?? count.Retrieve.Label ?? Name(count.Retrieve, count.Retrieve);
                 var text = $"{what}: {missing} more {(missing == 1 ? "dose" : "doses")} (counted {detail?.Counted ?? 0} of {count.AtLeast})";
-                actions.Add(Action(count.Retrieve, text, null, state, scope) with { Missing = missing });
+                actions.Add(Action(count.Retrieve, text, null, state, scope) with { Missing = missing, What = what });
                 break;
             }
 
@@ -289,13 +294,13 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
             {
                 var condition = mostRecent.Then is null ? null : Texts.Condition(mostRecent.Then, negate);
                 var what = Name(mostRecent.Retrieve, mostRecent.Retrieve);
-                actions.Add(Action(mostRecent.Retrieve, what, condition is null ? null : $"with a result {condition}", state, scope));
+                actions.Add(Action(mostRecent.Retrieve, what, condition is null ? null : $"(result: {condition})", state, scope));
                 // Record-anchored alternatives (a follow-up within days of the chosen result) can still close it.
                 if (!negate && mostRecent.Then is not null && state.Chosen!.FirstOrDefault(c => ReferenceEquals(c.Criterion, mostRecent)) is { Scope.Record: not null } chosen)
                 {
                     foreach (var inner in RecordAnchored(mostRecent.Then))
                     {
-                        actions.Add(Action(inner.Retrieve, inner.Label ?? Name(inner.Retrieve, inner.Retrieve), $"after the {what} of {Day(chosen.Scope.Record!.Time.First)}", state, chosen.Scope));
+                        actions.Add(Action(inner.Retrieve, inner.Label ?? Name(inner.Retrieve, inner.Retrieve), $"(for the {Name(chosen.Scope.Record!.Source, mostRecent.Retrieve)} of {Day(chosen.Scope.Record!.Time.First)})", state, chosen.Scope));
                     }
                 }
 
@@ -307,7 +312,7 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
                 var condition = sameDay.Then is null ? null : Texts.Condition(sameDay.Then, negate);
                 var what = string.Join(" and ", sameDay.Values.Select(v => v.Name));
                 var retrieve = sameDay.Values[0].Retrieve;
-                var action = Action(retrieve, $"{what} on one day", condition is null ? null : $"with {condition}", state, scope);
+                var action = Action(retrieve, $"{what} on one day", condition is null ? null : $"(result: {condition})", state, scope);
                 actions.Add(action with
                 {
                     ResourceTypes = [.. sameDay.Values.SelectMany(v => v.Retrieve.Leaves()).Select(l => l.ResourceType).Distinct(StringComparer.Ordinal)],
@@ -343,7 +348,7 @@ public sealed class GapAnalyzer(MeasureEvaluator evaluator, IRecordSource? recor
 
         var valueSet = leaves.Select(l => l.ValueSet).FirstOrDefault(v => v is not null);
         var info = valueSet is null ? null : ValueSetInfo.Of(valueSet);
-        var text = $"{what}{(condition is null ? "" : " " + condition)}{(due is { } d ? $" by {Day(d)}" : "")}";
+        var text = $"{what}{(due is { } d ? $" by {Day(d)}" : "")}{(condition is null ? "" : " " + condition)}";
         return new GapAction(text, what, [.. leaves.Select(l => l.ResourceType).Distinct(StringComparer.Ordinal)], info?.Url,
             [.. leaves.Where(l => l.ValueSet is not null).SelectMany(l => ValueSetInfo.Of(l.ValueSet!).Codes).Distinct()], due);
     }

@@ -3,13 +3,14 @@ using MeasureEval.Core.Index;
 namespace MeasureEval.Engine;
 
 /// <summary>
-/// Membership of one value set as hash lookups on "system|code". ICD-10-CM is-a entries also match every code below
+/// Membership of one value set as hash lookups on (system, code). ICD-10-CM is-a entries also match every code below
 /// them: a dotted code's ancestors are found by dropping characters after the dot (E11.65 → E11.6 → E11), so a lookup
 /// costs a few hashes whatever the value set's size, and an undotted "E111" is never taken as below "E11".
 /// </summary>
 public sealed class ValueSetIndex
 {
-    private readonly HashSet<string> _exact;
+    // system → codes: a lookup hashes the code only, with no key string built per coding.
+    private readonly Dictionary<string, HashSet<string>> _exact;
     private readonly HashSet<string> _icdIsA;
 
     public ValueSetIndex(string id, string url, string? version, IEnumerable<(string System, string Code)> exact, IEnumerable<string> icd10CmIsA, byte[] content)
@@ -17,7 +18,19 @@ public sealed class ValueSetIndex
         Id = id;
         Url = url;
         Version = version;
-        _exact = new HashSet<string>(exact.Select(c => Key(c.System, c.Code)), StringComparer.Ordinal);
+        _exact = new Dictionary<string, HashSet<string>>(StringComparer.Ordinal);
+        foreach (var (system, code) in exact)
+        {
+            if (!_exact.TryGetValue(system, out var codes))
+            {
+                codes = new HashSet<string>(StringComparer.Ordinal);
+                _exact[system] = codes;
+            }
+
+            codes.Add(code);
+        }
+
+        ExactCount = _exact.Values.Sum(c => c.Count);
         _icdIsA = new HashSet<string>(icd10CmIsA, StringComparer.Ordinal);
         Content = content;
     }
@@ -31,7 +44,7 @@ public sealed class ValueSetIndex
     /// <summary>The ValueSet resource exactly as read.</summary>
     public byte[] Content { get; }
 
-    public int ExactCount => _exact.Count;
+    public int ExactCount { get; }
 
     public bool Contains(string? system, string? code)
     {
@@ -40,7 +53,7 @@ public sealed class ValueSetIndex
             return false;
         }
 
-        if (_exact.Contains(Key(system, code)))
+        if (_exact.TryGetValue(system, out var codes) && codes.Contains(code))
         {
             return true;
         }
@@ -86,6 +99,4 @@ public sealed class ValueSetIndex
 
         return false;
     }
-
-    private static string Key(string system, string code) => string.Concat(system, "|", code);
 }

@@ -5,7 +5,7 @@ namespace MeasureEval.Analytics.Tests.Probability;
 
 public class FunnelLimitsTests
 {
-    // The interpolated limit of Spiegelhalter (Stat Med 2005;24:1185, Appendix A.1.1) computed from an independent
+    // The interpolated limit of Spiegelhalter (Stat Med 2005;24:1185, appendix on exact binomial limits) computed from an independent
     // binomial (MathNet.Numerics 5.0.0): r = smallest count with F(r) ≥ q, α = (F(r) − q)/(F(r) − F(r − 1)), (r − α)/n.
     private static double Reference(double q, int n, double p0)
     {

@@ -33,6 +33,10 @@ public sealed class BreastCancerScreeningTests
     [InlineData("mammogram-partial-month-before", 1, 1, 0, 0, 0)] // 2024-09 lies before the window
     [InlineData("mammogram-partial-year-straddles", 1, 1, 0, 0, 0)] // 2024 straddles the window start 2024-10-01: not in
     [InlineData("mammogram-partial-year-inside", 1, 1, 0, 0, 1)] // 2025 lies wholly inside
+    [InlineData("mammogram-after-period", 1, 1, 0, 0, 0)] // after periodEnd
+    [InlineData("one-side-refuted", 1, 1, 0, 0, 0)] // Z90.12 refuted: only one side counts
+    [InlineData("mammogram-window-start-rolls-over", 1, 1, 0, 0, 1, "2026-05-31", "2027-05-30")] // MP from 2026-05-31: - 15 months = 2025-02-31 -> rolls to 2025-03-01 (calendar arithmetic), inclusive
+    [InlineData("mammogram-before-rolled-window-start", 1, 1, 0, 0, 0, "2026-05-31", "2027-05-30")] // MP from 2026-05-31: the window starts 2025-03-01, so 2025-02-28 is outside
     [InlineData("mammogram-alternate-snomed", 1, 1, 0, 0, 1)] // 24623002 listed
     [InlineData("mammogram-observation-loinc", 1, 1, 0, 0, 1)] // LOINC 24606-6 as an Observation
     [InlineData("mammogram-report-loinc", 1, 1, 0, 0, 1)] // LOINC 26175-0 as a DiagnosticReport

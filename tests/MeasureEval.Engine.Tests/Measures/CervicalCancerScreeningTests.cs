@@ -25,6 +25,7 @@ public sealed class CervicalCancerScreeningTests
     [InlineData("cytology-first-day-of-window", 1, 1, 0, 0, 1)] // periodStart - 2 years, inclusive
     [InlineData("cytology-day-before-window", 1, 1, 0, 0, 0)] // one day before the window
     [InlineData("cytology-age-21-on-test-date", 1, 1, 0, 0, 1)] // turned 21 on 2023-12-31: >= 21 on the test date
+    [InlineData("cytology-after-period", 1, 1, 0, 0, 0)] // after periodEnd
     [InlineData("cytology-alternate-code", 1, 1, 0, 0, 1)] // 18500-9 listed
     [InlineData("cytology-report", 1, 1, 0, 0, 1)] // 33717-0 arriving as a DiagnosticReport
     [InlineData("cytology-preliminary", 1, 1, 0, 0, 0)] // preliminary does not count
@@ -36,9 +37,11 @@ public sealed class CervicalCancerScreeningTests
     [InlineData("hpv-alternate-code", 1, 1, 0, 0, 1)] // 82675-0 listed
     [InlineData("hpv-on-30th-birthday", 1, 1, 0, 0, 1)] // 30 on the test date
     [InlineData("hpv-day-before-30th-birthday", 1, 1, 0, 0, 0)] // 29 on the test date: does not count
+    [InlineData("hpv-on-30th-birthday-stated-date", 1, 1, 0, 0, 1)] // stated date 2023-06-15: 30 on the test date (UTC 2023-06-14)
     [InlineData("hpv-under-30-in-period", 1, 1, 0, 0, 0)] // 26 on the test date
     [InlineData("hpv-feb29-birthday-feb28", 1, 1, 0, 0, 0)] // born 1996-02-29: still 29 on 2026-02-28 (birthday reached on 1 March in common years: our rule)
     [InlineData("hpv-feb29-birthday-mar01", 1, 1, 0, 0, 1)] // born 1996-02-29: 30 on 2026-03-01 (our rule)
+    [InlineData("hpv-under-30-with-cytology", 1, 1, 0, 0, 1)] // any of: the cytology counts though the HPV test does not
     [InlineData("hpv-entered-in-error", 1, 1, 0, 0, 0)] // entered-in-error never counts
     // Exclusions: hysterectomy with no residual cervix (ICD-10-CM Z90.710, Z90.712; SNOMED CT 116140006) on or before periodEnd; hospice/palliative
     [InlineData("hysterectomy-z90-710", 1, 1, 1, 0, 0)] // Z90.710; numerator not evaluated

@@ -38,12 +38,16 @@ public sealed class ColorectalCancerScreeningTests
     // Deceased (our rule): before periodStart -> not in IP; during MP -> denominator exclusion
     [InlineData("died-before-period", 0, 0, 0, 0, 0)] // died the day before periodStart
     [InlineData("died-on-period-start", 1, 1, 1, 0, 0)] // died during MP: excluded; numerator not evaluated although a colonoscopy is present
+    [InlineData("died-stated-date-on-period-start", 1, 1, 1, 0, 0)] // died on stated date 2026-01-01, during MP (UTC 2025-12-31)
+    [InlineData("died-stated-date-before-period", 0, 0, 0, 0, 0)] // died on stated date 2025-12-31, before MP (UTC 2026-01-01)
     [InlineData("deceased-boolean", 0, 0, 0, 0, 0)] // deceasedBoolean true without a date counts as before periodStart
     [InlineData("died-partial-year-before-period", 0, 0, 0, 0, 0)] // died in 2025: wholly before periodStart
     [InlineData("died-partial-month-during-period", 1, 1, 1, 0, 0)] // died in 2026-05: during MP
     // Numerator: colonoscopy (SNOMED CT 73761001, 444783004) during MP or the 9 years before, i.e. from 2017-01-01 (USPSTF 2021, Table 1: every 10 years)
     [InlineData("colonoscopy-first-day-of-window", 1, 1, 0, 0, 1)] // periodStart - 9 years = 2017-01-01, inclusive
     [InlineData("colonoscopy-day-before-window", 1, 1, 0, 0, 0)] // one day before the window
+    [InlineData("colonoscopy-window-start-rolls-over", 1, 1, 0, 0, 1, "2028-02-29", "2029-02-28")] // MP from 2028-02-29: - 9 years = 2019-02-29 -> rolls to 2019-03-01, inclusive
+    [InlineData("colonoscopy-before-rolled-window-start", 1, 1, 0, 0, 0, "2028-02-29", "2029-02-28")] // MP from 2028-02-29: the window starts 2019-03-01
     [InlineData("colonoscopy-alternate-code", 1, 1, 0, 0, 1)] // 444783004 is listed
     [InlineData("colonoscopy-partial-year-inside", 1, 1, 0, 0, 1)] // partial date 2017 stands for the whole year, which lies inside the window
     [InlineData("colonoscopy-partial-year-outside", 1, 1, 0, 0, 0)] // 2016 lies before the window
@@ -52,6 +56,8 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("colonoscopy-in-progress", 1, 1, 0, 0, 0)] // only completed procedures count
     [InlineData("colonoscopy-entered-in-error", 1, 1, 0, 0, 0)] // entered-in-error never counts
     [InlineData("colonoscopy-performed-string", 1, 1, 0, 0, 0)] // performedString is not a usable time: never qualifies, reported
+    [InlineData("colonoscopy-performed-age", 1, 1, 0, 0, 0)] // performedAge is not a usable time for a Procedure, reported
+    [InlineData("colonoscopy-performed-range", 1, 1, 0, 0, 0)] // performedRange is not a usable time for a Procedure, reported
     [InlineData("colonoscopy-as-diagnostic-report", 1, 1, 0, 0, 1)] // a screening may arrive as a DiagnosticReport
     [InlineData("colonoscopy-as-observation", 1, 1, 0, 0, 1)] // a screening may arrive as an Observation
     // Numerator: FIT / FOBT (LOINC 29771-3, 57905-2, 56490-6, 56491-4, 58453-2, 2335-8, 14563-1, 14564-9, 14565-6) during MP (USPSTF 2021: yearly; any FOBT counts: common practice)
@@ -61,6 +67,8 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("fit-offset-plus14", 1, 1, 0, 0, 1)] // counts on its stated date 2026-01-01, no conversion to UTC
     [InlineData("fit-offset-minus05", 1, 1, 0, 0, 0)] // counts on its stated date 2025-12-31 (UTC would be 2026-01-01)
     [InlineData("fit-effective-instant", 1, 1, 0, 0, 1)] // effectiveInstant is a usable time
+    [InlineData("fit-effective-instant-offset-plus14", 1, 1, 0, 0, 1)] // an instant also counts on its stated date, 2026-01-01
+    [InlineData("fit-effective-instant-offset-minus05", 1, 1, 0, 0, 0)] // an instant's stated date 2025-12-31 (UTC 2026-01-01)
     [InlineData("fit-effective-period-end-in-period", 1, 1, 0, 0, 1)] // effectivePeriod is judged by its end
     [InlineData("fit-effective-period-start-only", 1, 1, 0, 0, 0)] // without an end, by its start (2025-12-30: outside)
     [InlineData("fit-partial-month-inside", 1, 1, 0, 0, 1)] // 2026-05 lies wholly inside MP
@@ -78,6 +86,8 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("fit-effective-timing", 1, 1, 0, 0, 0)] // effectiveTiming is never the time: never qualifies, reported
     [InlineData("fit-as-diagnostic-report", 1, 1, 0, 0, 1)] // a screening may arrive as a DiagnosticReport
     [InlineData("fit-report-appended", 1, 1, 0, 0, 1)] // DiagnosticReport appended counts
+    [InlineData("fit-report-conclusion-code-only", 1, 1, 0, 0, 1)] // conclusionCode is content
+    [InlineData("fit-report-presented-form-only", 1, 1, 0, 0, 1)] // presentedForm is content
     [InlineData("fit-report-without-content", 1, 1, 0, 0, 0)] // a DiagnosticReport counts only with conclusion, conclusionCode, result or presentedForm
     [InlineData("fit-report-preliminary", 1, 1, 0, 0, 0)] // preliminary report does not count
     // Numerator: stool DNA-FIT (LOINC 77353-1, 77354-9) during MP or the 2 years before, from 2024-01-01 (USPSTF 2021: every 1-3 years)
@@ -116,16 +126,21 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("hospice-discharge-ends-stated-date-in-period", 1, 1, 1, 0, 0)] // period end's stated date 2026-12-31 is in MP (UTC would be 2027-01-01)
     [InlineData("hospice-discharge-ends-stated-date-after-period", 1, 1, 0, 0, 0)] // period end's stated date 2027-01-01 is after MP (UTC would be 2026-12-31)
     [InlineData("hospice-discharge-cancelled", 1, 1, 0, 0, 0)] // a cancelled encounter does not count
+    [InlineData("hospice-discharge-planned", 1, 1, 0, 0, 0)] // a planned encounter does not count
+    [InlineData("hospice-discharge-in-progress", 1, 1, 1, 0, 0)] // any status but planned, cancelled, entered-in-error: in-progress counts
     [InlineData("hospice-discharge-other-disposition", 1, 1, 0, 0, 0)] // only disposition hosp
     [InlineData("hospice-encounter-type", 1, 1, 1, 0, 0)] // Encounter type 385763009 (hospice care) overlapping MP
     [InlineData("palliative-procedure-in-progress", 1, 1, 1, 0, 0)] // Procedure 103735009 in-progress, overlapping MP
     [InlineData("hospice-procedure-before-period", 1, 1, 0, 0, 0)] // must overlap MP
     [InlineData("hospice-service-request", 1, 1, 1, 0, 0)] // ServiceRequest active, intent order
+    [InlineData("hospice-service-request-before-period", 1, 1, 0, 0, 0)] // authoredOn 2025-12-31: not during MP
     [InlineData("hospice-service-request-draft", 1, 1, 0, 0, 0)] // ServiceRequest must be active or completed
     [InlineData("hospice-service-request-proposal", 1, 1, 0, 0, 0)] // intent proposal is neither order (or a child) nor plan
     [InlineData("hospice-service-request-original-order", 1, 1, 1, 0, 0)] // original-order is a child intent of order
     [InlineData("hospice-service-request-plan", 1, 1, 1, 0, 0)] // completed, intent plan
     [InlineData("palliative-condition-z51-5", 1, 1, 1, 0, 0)] // Condition Z51.5 overlapping MP
+    [InlineData("palliative-condition-ongoing-from-before", 1, 1, 1, 0, 0)] // onset before MP, no abatement, active: overlaps
+    [InlineData("hospice-procedure-period-ends-in-period", 1, 1, 1, 0, 0)] // completed hospice care ending in MP
     [InlineData("palliative-condition-abated-before-period", 1, 1, 0, 0, 0)] // abated the day before MP: no overlap
     [InlineData("palliative-condition-abated-on-period-start", 1, 1, 1, 0, 0)] // abatement >= window start: overlaps
     [InlineData("palliative-condition-inactive-no-abatement", 1, 1, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)
@@ -165,6 +180,8 @@ public sealed class ColorectalCancerScreeningTests
     [InlineData("birthdate-missing", FindingCodes.MissingBirthDate, null)]
     [InlineData("encounter-without-start", FindingCodes.NoUsableTime, "Encounter/enc-1")]
     [InlineData("colonoscopy-performed-string", FindingCodes.NoUsableTime, "Procedure/proc-1")]
+    [InlineData("colonoscopy-performed-age", FindingCodes.NoUsableTime, "Procedure/proc-1")]
+    [InlineData("colonoscopy-performed-range", FindingCodes.NoUsableTime, "Procedure/proc-1")]
     [InlineData("fit-issued-only", FindingCodes.NoUsableTime, "Observation/obs-1")]
     [InlineData("fit-effective-timing", FindingCodes.NoUsableTime, "Observation/obs-1")]
     [InlineData("palliative-condition-inactive-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]

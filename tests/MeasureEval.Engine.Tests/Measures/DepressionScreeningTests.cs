@@ -20,6 +20,8 @@ public sealed class DepressionScreeningTests
     [InlineData("phq9-negative", 1, 1, 0, 0, 1)] // negative screen needs no follow-up
     [InlineData("phq9-score-9", 1, 1, 0, 0, 1)] // 9 < 10: negative (Kroenke 2001)
     [InlineData("phq9-score-10-no-follow-up", 1, 1, 0, 0, 0)] // 10 is positive (Kroenke 2001) and there is no follow-up
+    [InlineData("phq9-integer-negative", 1, 1, 0, 0, 1)] // a score as valueInteger: 4, negative
+    [InlineData("phq9-integer-positive-no-follow-up", 1, 1, 0, 0, 0)] // a score as valueInteger: 12, positive, no follow-up
     [InlineData("phq2-score-2", 1, 1, 0, 0, 1)] // 2 < 3: negative (Kroenke 2003)
     [InlineData("phq2-score-3-no-follow-up", 1, 1, 0, 0, 0)] // 3 is positive (Kroenke 2003), no follow-up
     [InlineData("phq9-adolescent-negative", 1, 1, 0, 0, 1)] // adolescent PHQ-9 negative
@@ -35,6 +37,9 @@ public sealed class DepressionScreeningTests
     [InlineData("follow-up-day-3", 1, 1, 0, 0, 0)] // D+3 does not count
     [InlineData("follow-up-day-before", 1, 1, 0, 0, 0)] // D-1 does not count
     [InlineData("follow-up-plan-intent", 1, 1, 0, 0, 1)] // ServiceRequest completed, intent plan counts
+    [InlineData("follow-up-reflex-order-intent", 1, 1, 0, 0, 1)] // reflex-order is a child intent of order
+    [InlineData("follow-up-directive-intent", 1, 1, 0, 0, 0)] // intent directive does not count
+    [InlineData("follow-up-without-authored-on", 1, 1, 0, 0, 0)] // a ServiceRequest without authoredOn has no usable time, reported
     [InlineData("follow-up-proposal-intent", 1, 1, 0, 0, 0)] // intent proposal does not count
     [InlineData("follow-up-draft", 1, 1, 0, 0, 0)] // status draft does not count
     [InlineData("follow-up-procedure-not-done", 1, 1, 0, 0, 0)] // a Procedure must be completed
@@ -92,6 +97,7 @@ public sealed class DepressionScreeningTests
     [Theory]
     [InlineData("birthdate-partial-year-uncertain", FindingCodes.PartialBirthDate, null)]
     [InlineData("screening-issued-only", FindingCodes.NoUsableTime, "Observation/obs-1")]
+    [InlineData("follow-up-without-authored-on", FindingCodes.NoUsableTime, "ServiceRequest/sr-1")]
     public void Evaluate_DataQualityCase(string caseFile, string code, string? resource, string periodStart = MeasureHarness.DefaultPeriodStart, string periodEnd = MeasureHarness.DefaultPeriodEnd)
     {
         var result = MeasureHarness.Evaluate(MeasureId, caseFile, periodStart, periodEnd);

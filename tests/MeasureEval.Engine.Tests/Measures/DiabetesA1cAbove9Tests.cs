@@ -41,6 +41,11 @@ public sealed class DiabetesA1cAbove9Tests
     [InlineData("diabetes-onset-partial-month", 1, 1, 0, 0, 1)] // onset uses the first day, 2026-12-01
     [InlineData("diabetes-without-onset", 0, 0, 0, 0, 0)] // no onset (and no recordedDate): no usable time, never qualifies, reported
     [InlineData("diabetes-clinical-status-absent", 1, 1, 0, 0, 1)] // absent clinicalStatus without abatement counts as ongoing
+    [InlineData("diabetes-recurrence", 1, 1, 0, 0, 1)] // recurrence without abatement counts as ongoing
+    [InlineData("diabetes-relapse", 1, 1, 0, 0, 1)] // relapse without abatement counts as ongoing
+    [InlineData("diabetes-remission-no-abatement", 0, 0, 0, 0, 0)] // remission without abatement does not count, reported
+    [InlineData("diabetes-onset-string", 0, 0, 0, 0, 0)] // onsetString is not a usable onset, reported
+    [InlineData("diabetes-icd10-who-system", 0, 0, 0, 0, 0)] // the code must be ICD-10-CM (system http://hl7.org/fhir/sid/icd-10-cm), not WHO ICD-10
     [InlineData("diabetes-inactive-no-abatement", 0, 0, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)
     [InlineData("diabetes-resolved-no-abatement", 0, 0, 0, 0, 0)] // resolved without abatement does not count, reported
     [InlineData("diabetes-refuted", 0, 0, 0, 0, 0)] // refuted does not count
@@ -65,7 +70,8 @@ public sealed class DiabetesA1cAbove9Tests
     [InlineData("a1c-only-entered-in-error", 1, 1, 0, 0, 1)] // no counting result: in the numerator
     [InlineData("a1c-only-preliminary", 1, 1, 0, 0, 1)] // no counting result: in the numerator
     [InlineData("a1c-only-before-period", 1, 1, 0, 0, 1)] // no result in MP: in the numerator
-    [InlineData("a1c-unconvertible-unit", 1, 1, 0, 0, 0)] // the most recent result's unit cannot be converted: never qualifies (is not > 9), reported - our reading: a result exists, so 'none' does not apply
+    [InlineData("a1c-unconvertible-unit", 1, 1, 0, 0, 1)] // the only result is in mg/dL: never qualifies, unusable, never the most recent - so there is none (open gap), reported
+    [InlineData("a1c-most-recent-unconvertible", 1, 1, 0, 0, 0)] // the later mg/dL result is unusable, never the most recent: the 8.0 of 03-01 decides (not > 9)
     // Exclusions: hospice/palliative; deceased during MP - an excluded patient is never in the numerator, even with no result
     [InlineData("hospice-without-result", 1, 1, 1, 0, 0)] // excluded; no-result numerator not evaluated
     [InlineData("died-during-period-without-result", 1, 1, 1, 0, 0)] // died during MP
@@ -79,6 +85,8 @@ public sealed class DiabetesA1cAbove9Tests
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
     [InlineData("diabetes-without-onset", FindingCodes.NoUsableTime, "Condition/cond-1")]
+    [InlineData("diabetes-remission-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
+    [InlineData("diabetes-onset-string", FindingCodes.NoUsableTime, "Condition/cond-1")]
     [InlineData("diabetes-inactive-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("diabetes-resolved-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("a1c-unconvertible-unit", FindingCodes.UnconvertibleUnit, "Observation/obs-1")]

@@ -41,6 +41,11 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("diabetes-onset-partial-month", 1, 1, 0, 0, 0)] // onset uses the first day, 2026-12-01
     [InlineData("diabetes-without-onset", 0, 0, 0, 0, 0)] // no onset (and no recordedDate): no usable time, never qualifies, reported
     [InlineData("diabetes-clinical-status-absent", 1, 1, 0, 0, 0)] // absent clinicalStatus without abatement counts as ongoing
+    [InlineData("diabetes-recurrence", 1, 1, 0, 0, 0)] // recurrence without abatement counts as ongoing
+    [InlineData("diabetes-relapse", 1, 1, 0, 0, 0)] // relapse without abatement counts as ongoing
+    [InlineData("diabetes-remission-no-abatement", 0, 0, 0, 0, 0)] // remission without abatement does not count, reported
+    [InlineData("diabetes-onset-string", 0, 0, 0, 0, 0)] // onsetString is not a usable onset, reported
+    [InlineData("diabetes-icd10-who-system", 0, 0, 0, 0, 0)] // the code must be ICD-10-CM (system http://hl7.org/fhir/sid/icd-10-cm), not WHO ICD-10
     [InlineData("diabetes-inactive-no-abatement", 0, 0, 0, 0, 0)] // inactive without abatement does not count, reported (no end date)
     [InlineData("diabetes-resolved-no-abatement", 0, 0, 0, 0, 0)] // resolved without abatement does not count, reported
     [InlineData("diabetes-refuted", 0, 0, 0, 0, 0)] // refuted does not count
@@ -59,6 +64,10 @@ public sealed class DiabetesA1cBelow8Tests
     [InlineData("a1c-ifcc-63", 1, 1, 0, 0, 1)] // 63 mmol/mol -> 7.915 % (spec check value, master equation)
     [InlineData("a1c-ifcc-64", 1, 1, 0, 0, 0)] // 64 mmol/mol -> 8.007 %, not < 8 (spec check value; never rounded)
     [InlineData("a1c-unconvertible-unit", 1, 1, 0, 0, 0)] // mg/dL cannot be converted to %: never qualifies, reported
+    [InlineData("a1c-most-recent-unconvertible", 1, 1, 0, 0, 1)] // the mg/dL result never qualifies - like a record without a usable time - so it is unusable and never the most recent: the 7.0 of 03-01 decides
+    [InlineData("a1c-ifcc-comparator-below-63", 1, 1, 0, 0, 1)] // <63 mmol/mol: every allowed value converts below 7.915 %
+    [InlineData("a1c-ifcc-comparator-below-64", 1, 1, 0, 0, 0)] // <64 mmol/mol allows 63.99 -> 8.0058 %: not every value < 8
+    [InlineData("a1c-tie-lowest-after-conversion", 1, 1, 0, 0, 1)] // same date: lowest after conversion is 63 mmol/mol = 7.915 % (not the raw 8.2 < 63)
     [InlineData("a1c-comparator-below-6", 1, 1, 0, 0, 1)] // <6.0 % is < 8 (spec example)
     [InlineData("a1c-comparator-below-8-5", 1, 1, 0, 0, 0)] // <8.5 % allows 8.2: not every value < 8
     [InlineData("a1c-comparator-at-most-8", 1, 1, 0, 0, 0)] // <=8.0 % allows 8.0
@@ -91,6 +100,8 @@ public sealed class DiabetesA1cBelow8Tests
     // Shared semantics: no usable time element, an unconvertible unit, a condition ended without a date, a missing or uncertain birthDate are each "reported as a data-quality finding".
     [Theory]
     [InlineData("diabetes-without-onset", FindingCodes.NoUsableTime, "Condition/cond-1")]
+    [InlineData("diabetes-remission-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
+    [InlineData("diabetes-onset-string", FindingCodes.NoUsableTime, "Condition/cond-1")]
     [InlineData("diabetes-inactive-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("diabetes-resolved-no-abatement", FindingCodes.ConditionNoEndDate, "Condition/cond-1")]
     [InlineData("a1c-unconvertible-unit", FindingCodes.UnconvertibleUnit, "Observation/obs-1")]

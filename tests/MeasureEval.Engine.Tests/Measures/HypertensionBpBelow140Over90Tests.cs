@@ -19,6 +19,7 @@ public sealed class HypertensionBpBelow140Over90Tests
     [InlineData("hypertension-onset-june-30", 1, 1, 0, 0, 0)] // last day of the first six months
     [InlineData("hypertension-onset-july-01", 0, 0, 0, 0, 0)] // onset after the first six months
     [InlineData("hypertension-onset-partial-june", 1, 1, 0, 0, 0)] // onset uses the first day, 2026-06-01
+    [InlineData("hypertension-onset-partial-year", 1, 1, 0, 0, 0)] // onset 2026 uses its first day, 2026-01-01
     [InlineData("hypertension-onset-partial-july", 0, 0, 0, 0, 0)] // first day 2026-07-01 is after 2026-06-30
     [InlineData("hypertension-onset-rolled-month-end", 1, 1, 0, 0, 0, "2025-08-31", "2026-08-30")] // MP from 2025-08-31: + 6 months = 2026-02-31 -> 2026-03-01, - 1 day = 2026-02-28 (calendar arithmetic, missing day rolls to the next 1st)
     [InlineData("hypertension-onset-after-rolled-month-end", 0, 0, 0, 0, 0, "2025-08-31", "2026-08-30")] // MP from 2025-08-31: onset 2026-03-01 is after 2026-02-28
@@ -41,6 +42,7 @@ public sealed class HypertensionBpBelow140Over90Tests
     [InlineData("panel-139-89", 1, 1, 0, 0, 1)] // just under both thresholds
     [InlineData("panel-140-80", 1, 1, 0, 0, 0)] // systolic 140 is not < 140
     [InlineData("panel-130-90", 1, 1, 0, 0, 0)] // diastolic 90 is not < 90
+    [InlineData("panel-amended", 1, 1, 0, 0, 1)] // amended counts
     [InlineData("separate-observations-138-88", 1, 1, 0, 0, 1)] // separate 8480-6 / 8462-4 Observations on one date
     [InlineData("panel-in-kilopascal", 1, 1, 0, 0, 1)] // UCUM: 18 kPa = 135.0 mm[Hg], 11 kPa = 82.5 mm[Hg] (1 mm[Hg] = 133.322 Pa, UCUM table)
     [InlineData("panel-in-kilopascal-high", 1, 1, 0, 0, 0)] // UCUM: 19 kPa = 142.5 mm[Hg], not < 140
@@ -57,6 +59,7 @@ public sealed class HypertensionBpBelow140Over90Tests
     [InlineData("later-preliminary-ignored", 1, 1, 0, 0, 1)] // preliminary does not count
     [InlineData("later-entered-in-error-ignored", 1, 1, 0, 0, 1)] // entered-in-error never counts
     [InlineData("no-reading", 1, 1, 0, 0, 0)] // no reading: not in the numerator
+    [InlineData("reading-after-period-ignored", 1, 1, 0, 0, 1)] // only dates in MP: the 2027-01-01 reading is outside
     [InlineData("reading-before-period", 1, 1, 0, 0, 0)] // reading must be in MP
     [InlineData("panel-issued-only", 1, 1, 0, 0, 0)] // issued is never the time: never qualifies, reported
     [InlineData("diastolic-unconvertible-unit", 1, 1, 0, 0, 0)] // a diastolic in % cannot be converted to mm[Hg]: never qualifies, reported
@@ -65,6 +68,7 @@ public sealed class HypertensionBpBelow140Over90Tests
     [InlineData("esrd-snomed", 1, 1, 1, 0, 0)] // SNOMED CT 46177005
     [InlineData("dialysis-z99-2", 1, 1, 1, 0, 0)] // Z99.2
     [InlineData("kidney-transplant-z94-0", 1, 1, 1, 0, 0)] // Z94.0
+    [InlineData("esrd-resolved-history", 1, 1, 1, 0, 0)] // onset on or before periodEnd needs only the onset (history rule)
     [InlineData("ckd-stage-5-not-listed", 1, 1, 0, 0, 0)] // N18.5 is not listed
     [InlineData("esrd-onset-after-period", 1, 1, 0, 0, 0)] // onset after periodEnd
     [InlineData("esrd-onset-on-period-end", 1, 1, 1, 0, 0)] // onset on periodEnd
@@ -78,6 +82,7 @@ public sealed class HypertensionBpBelow140Over90Tests
     [InlineData("pregnancy-snomed", 1, 1, 1, 0, 0)] // SNOMED CT 77386006
     [InlineData("pregnancy-42-weeks-reach-period-start", 1, 1, 1, 0, 0)] // no abatement: 2025-03-13 + 42 weeks = 2026-01-01, overlaps MP (our rule)
     [InlineData("pregnancy-42-weeks-end-before-period", 1, 1, 0, 0, 0)] // no abatement: 2025-03-12 + 42 weeks = 2025-12-31, before MP (our rule)
+    [InlineData("pregnancy-abated-in-period", 1, 1, 1, 0, 0)] // abated in MP: overlaps
     [InlineData("pregnancy-abated-before-period", 1, 1, 0, 0, 0)] // abated before MP
     [InlineData("pregnancy-onset-after-period", 1, 1, 0, 0, 0)] // onset after periodEnd
     [InlineData("hospice-procedure-in-progress", 1, 1, 1, 0, 0)] // palliative care procedure in progress overlapping MP

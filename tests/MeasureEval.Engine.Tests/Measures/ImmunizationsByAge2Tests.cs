@@ -33,6 +33,7 @@ public sealed class ImmunizationsByAge2Tests
     [InlineData("mmr-code-without-leading-zero", 1, 1, 0, 0, 0)] // CVX codes compare as strings with leading zeros: '3' is not '03'
     [InlineData("pcv-first-dose-day-41", 1, 1, 0, 0, 0)] // day 41 after birth: not counted, PCV 3
     [InlineData("pcv-first-dose-day-42", 1, 1, 0, 0, 1)] // day 42 after birth counts
+    [InlineData("pcv-first-dose-day-42-stated-date", 1, 1, 0, 0, 1)] // stated date 2024-04-12 = day 42 (UTC 2024-04-11)
     [InlineData("dtap-fourth-on-second-birthday", 1, 1, 0, 0, 1)] // dose on the 2nd birthday counts (between day 42 and the 2nd birthday, inclusive)
     [InlineData("dtap-fourth-after-second-birthday", 1, 1, 0, 0, 0)] // the day after the 2nd birthday: not counted
     [InlineData("dtap-fourth-stated-date-on-birthday", 1, 1, 0, 0, 1)] // stated date 2026-03-01 (UTC 2026-03-02)

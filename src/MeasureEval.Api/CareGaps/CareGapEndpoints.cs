@@ -1,0 +1,122 @@
+using Hl7.Fhir.Model;
+using MeasureEval.Api.Capabilities;
+using MeasureEval.Api.Errors;
+using MeasureEval.Api.Fhir;
+using MeasureEval.Api.Ingest;
+using MeasureEval.Engine.Gaps;
+using MeasureEval.Engine.Reports;
+using Microsoft.AspNetCore.Builder;
+using Microsoft.AspNetCore.Http;
+using Microsoft.AspNetCore.Http.HttpResults;
+using Microsoft.AspNetCore.Routing;
+using Microsoft.Extensions.Options;
+
+namespace MeasureEval.Api.CareGaps;
+
+/// <summary>$care-gaps (DEQM parameters, a Parameters resource with one Bundle per patient) and its streamed CSV/NDJSON export.</summary>
+public static class CareGapEndpoints
+{
+    public const string CsvType = "text/csv; charset=utf-8";
+    public const string NdjsonType = "application/x-ndjson";
+    private const string CareGapsDefinition = "http://hl7.org/fhir/us/davinci-deqm/OperationDefinition/care-gaps";
+
+    public static IEndpointRouteBuilder MapCareGapEndpoints(this IEndpointRouteBuilder app)
+    {
+        var group = app.MapGroup("").WithTags("Care gaps");
+        var parameters = "periodStart, periodEnd, subject Patient/x or Group/x, practitioner Practitioner/x (panel), organization Organization/x (payer), status (repeated; default open-gap), measureId (repeated; default all), horizon (date; default the end of the next period)";
+        group.MapGet("/Measure/$care-gaps", GetCareGapsAsync).WithName("care-gaps-get")
+            .WithSummary("Gaps in care per patient: a Parameters with one Bundle (MeasureReports, DetectedIssues) per patient")
+            .WithFhir([], [200], 400, 404, 406)
+            .WithFhirOperation("care-gaps", CareGapsDefinition, "Measure", parameters);
+        group.MapPost("/Measure/$care-gaps", PostCareGapsAsync).WithName("care-gaps-post")
+            .WithSummary("Gaps in care with a Parameters body")
+            .WithFhir(FhirEndpointExtensions.ResourceMediaTypes, [200], 400, 404, 406, 413, 415);
+        group.MapGet("/Measure/$care-gaps-export", ExportAsync).WithName("care-gaps-export")
+            .WithSummary($"One row per patient and measure, streamed as CSV or NDJSON (_format=csv|ndjson); {parameters}");
+        return app;
+    }
+
+    public static async Task<FhirResult> GetCareGapsAsync(HttpRequest request, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(request);
+        var issues = new List<FhirIssue>();
+        return CareGapQuery.TryRead(request.Query, time, export: false, issues, out var query)
+            ? await CareGapsAsync(query!, service, reports, time, cancellationToken)
+            : FhirResult.Outcome(issues);
+    }
+
+    public static async Task<FhirResult> PostCareGapsAsync(
+        HttpRequest request, CareGapService service, MeasureReportBuilder reports, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(request);
+        ArgumentNullException.ThrowIfNull(options);
+        var parsed = await FhirRequestBody.ReadResourceAsync(request, options.Value, cancellationToken);
+        if (!parsed.Succeeded)
+        {
+            return FhirResult.Outcome(parsed.Issues);
+        }
+
+        if (parsed.Resource is not Parameters body)
+        {
+            return FhirResult.Outcome(new FhirIssue(ErrorCatalogue.ResourceTypeMismatch, $"the body is a {parsed.Resource!.TypeName}, not Parameters", "Parameters"));
+        }
+
+        var issues = new List<FhirIssue>();
+        return CareGapQuery.TryRead(body, time, issues, out var query)
+            ? await CareGapsAsync(query!, service, reports, time, cancellationToken)
+            : FhirResult.Outcome(issues);
+    }
+
+    public static async Task<Results<PushStreamHttpResult, FhirResult>> ExportAsync(HttpRequest request, CareGapService service, TimeProvider time, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(request);
+        ArgumentNullException.ThrowIfNull(service);
+        var issues = new List<FhirIssue>();
+        if (!CareGapQuery.TryRead(request.Query, time, export: true, issues, out var query))
+        {
+            return FhirResult.Outcome(issues);
+        }
+
+        var (selection, problems) = await service.SelectAsync(query!, cancellationToken);
+        if (selection is null)
+        {
+            return FhirResult.Outcome(problems);
+        }
+
+        var csv = query!.Format == ExportFormat.Csv;
+        return TypedResults.Stream(
+            async body =>
+            {
+                await using var writer = new CareGapExportWriter(body, query.Format);
+                await writer.WriteHeaderAsync(cancellationToken);
+                await foreach (var patient in service.StreamAsync(selection, query, cancellationToken))
+                {
+                    foreach (var (_, gap) in patient.Gaps)
+                    {
+                        await writer.WriteAsync(gap, cancellationToken);
+                    }
+                }
+            },
+            csv ? CsvType : NdjsonType,
+            csv ? "care-gaps.csv" : "care-gaps.ndjson");
+    }
+
+    private static async Task<FhirResult> CareGapsAsync(CareGapQuery query, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(service);
+        var (selection, problems) = await service.SelectAsync(query, cancellationToken);
+        if (selection is null)
+        {
+            return FhirResult.Outcome(problems);
+        }
+
+        var builder = new CareGapBundleBuilder(reports, time);
+        var result = new Parameters { Id = Guid.NewGuid().ToString() };
+        await foreach (var patient in service.StreamAsync(selection, query, cancellationToken))
+        {
+            result.Parameter.Add(new Parameters.ParameterComponent { Name = "return", Resource = builder.Build(patient.Facts.PatientId, patient.Gaps) });
+        }
+
+        return FhirResult.Of(200, result);
+    }
+}

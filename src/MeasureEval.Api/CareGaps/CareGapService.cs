@@ -1,0 +1,154 @@
+using System.Runtime.CompilerServices;
+using Hl7.Fhir.Model;
+using MeasureEval.Api.Errors;
+using MeasureEval.Api.Measures;
+using MeasureEval.Core.Fhir;
+using MeasureEval.Core.Index;
+using MeasureEval.Core.Storage;
+using MeasureEval.Engine;
+using MeasureEval.Engine.Gaps;
+
+namespace MeasureEval.Api.CareGaps;
+
+/// <summary>One patient's gaps of the statuses asked for, in the order of the measures.</summary>
+public sealed record PatientGaps(PatientFacts Facts, IReadOnlyList<(MeasureDefinition Measure, CareGap Gap)> Gaps);
+
+/// <summary>A resolved request: the measures and, for a Patient or Group subject, the patient ids.</summary>
+public sealed record CareGapSelection(MeasureRepository Repository, IReadOnlyList<MeasureDefinition> Measures, IReadOnlyCollection<string>? PatientIds);
+
+/// <summary>
+/// Picks the patients (one, a Group's members, everyone), narrows them to a panel or a payer's members, and streams
+/// their gaps: each patient's facts are read once for all measures, and nothing grows with the population.
+/// </summary>
+public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
+{
+    public async Task<(CareGapSelection? Selection, IReadOnlyList<FhirIssue> Issues)> SelectAsync(CareGapQuery query, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(query);
+        var repository = await catalog.GetAsync(cancellationToken);
+        var issues = new List<FhirIssue>();
+        var measures = new List<MeasureDefinition>();
+        if (query.MeasureIds.Count == 0)
+        {
+            measures.AddRange(repository.Measures);
+        }
+
+        foreach (var id in query.MeasureIds)
+        {
+            if (repository.TryGetMeasure(id, out var measure))
+            {
+                measures.Add(measure);
+            }
+            else
+            {
+                issues.Add(new FhirIssue(CareGapErrors.UnknownMeasure, $"no measure '{id}' is loaded", "measureId"));
+            }
+        }
+
+        IReadOnlyCollection<string>? patientIds = null;
+        if (query.SubjectType == "Patient")
+        {
+            patientIds = [query.SubjectId!];
+            if (await store.GetPatientFactsAsync(query.SubjectId!, cancellationToken) is null)
+            {
+                issues.Add(new FhirIssue(CareGapErrors.UnknownSubject, $"nothing is stored for Patient/{query.SubjectId}", "subject"));
+            }
+        }
+        else if (query.SubjectType == "Group")
+        {
+            patientIds = await GroupMembersAsync(query.SubjectId!, query.Period, cancellationToken);
+            if (patientIds is null)
+            {
+                issues.Add(new FhirIssue(CareGapErrors.UnknownSubject, $"Group/{query.SubjectId} is not stored", "subject"));
+            }
+        }
+
+        return issues.Count > 0 ? (null, issues) : (new CareGapSelection(repository, measures, patientIds), issues);
+    }
+
+    public async IAsyncEnumerable<PatientGaps> StreamAsync(CareGapSelection selection, CareGapQuery query, [EnumeratorCancellation] CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(selection);
+        ArgumentNullException.ThrowIfNull(query);
+        var records = new StoreRecordSource(store);
+        var evaluator = new MeasureEvaluator(selection.Repository, records);
+        var analyzer = new GapAnalyzer(evaluator, records);
+        await foreach (var facts in store.StreamPatientFactsAsync(selection.PatientIds, cancellationToken))
+        {
+            if (!OnPanel(facts, query.Practitioner) || !CoveredBy(facts, query.Organization, query.Period))
+            {
+                continue;
+            }
+
+            var results = evaluator.EvaluateAll(selection.Measures, facts, query.Period);
+            var gaps = new List<(MeasureDefinition, CareGap)>();
+            for (var i = 0; i < selection.Measures.Count; i++)
+            {
+                var gap = analyzer.Analyze(selection.Measures[i], facts, query.Period, results[i], query.Horizon);
+                if (query.Statuses.Contains(gap.Status))
+                {
+                    gaps.Add((selection.Measures[i], gap));
+                }
+            }
+
+            if (gaps.Count > 0)
+            {
+                yield return new PatientGaps(facts, gaps);
+            }
+        }
+    }
+
+    /// <summary>The primary-care panel: the patient's first generalPractitioner.</summary>
+    public static bool OnPanel(PatientFacts facts, string? practitioner) =>
+        practitioner is null || (facts.Demographics?.GeneralPractitioner is { } gp && SameReference(gp, practitioner));
+
+    /// <summary>A payer's members: an active Coverage overlapping the period (no period: all of it) whose payor is the Organization.</summary>
+    public static bool CoveredBy(PatientFacts facts, string? organization, MeasurementPeriod period)
+    {
+        ArgumentNullException.ThrowIfNull(facts);
+        ArgumentNullException.ThrowIfNull(period);
+        if (organization is null)
+        {
+            return true;
+        }
+
+        foreach (var coverage in facts.Coverages)
+        {
+            var start = StatedTime.TryParse(coverage.PeriodStart, out var s) ? s.First : DateOnly.MinValue;
+            var end = StatedTime.TryParse(coverage.PeriodEnd, out var e) ? e.Last : DateOnly.MaxValue;
+            if (coverage.Status == "active" && start <= period.End && end >= period.Start && coverage.Payors.Any(p => SameReference(p, organization)))
+            {
+                return true;
+            }
+        }
+
+        return false;
+    }
+
+    /// <summary>"Organization/x" matches itself and an absolute reference ending in "/Organization/x".</summary>
+    private static bool SameReference(string reference, string relative) =>
+        reference == relative || reference.EndsWith("/" + relative, StringComparison.Ordinal);
+
+    /// <summary>
+    /// The patient ids among the Group's members that are not inactive and whose attribution period (member.period, when
+    /// given) overlaps the measurement period; null when no such Group is stored.
+    /// </summary>
+    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, MeasurementPeriod period, CancellationToken cancellationToken)
+    {
+        var stored = await store.ReadAsync("Group", id, cancellationToken);
+        if (stored is not { Deleted: false, Json: { } json })
+        {
+            return null;
+        }
+
+        var group = FhirJson.Parse<Group>(json);
+        return [.. group.Member.Where(m => m.Inactive != true && Attributed(m.Period, period)).Select(m => FactExtractor.PatientIdOf(m.Entity)).OfType<string>().Distinct(StringComparer.Ordinal)];
+    }
+
+    private static bool Attributed(Period? attribution, MeasurementPeriod period)
+    {
+        var start = StatedTime.TryParse(attribution?.Start, out var s) ? s.First : DateOnly.MinValue;
+        var end = StatedTime.TryParse(attribution?.End, out var e) ? e.Last : DateOnly.MaxValue;
+        return start <= period.End && end >= period.Start;
+    }
+}

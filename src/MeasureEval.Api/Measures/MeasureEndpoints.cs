@@ -1,0 +1,291 @@
+using System.Buffers;
+using Hl7.Fhir.Model;
+using MeasureEval.Api.Capabilities;
+using MeasureEval.Api.Errors;
+using MeasureEval.Api.Fhir;
+using MeasureEval.Api.Ingest;
+using MeasureEval.Core.Fhir;
+using MeasureEval.Core.Storage;
+using MeasureEval.Engine;
+using MeasureEval.Engine.Reports;
+using Microsoft.AspNetCore.Builder;
+using Microsoft.AspNetCore.Http;
+using Microsoft.AspNetCore.Routing;
+using Microsoft.Extensions.Options;
+using Interaction = Hl7.Fhir.Model.CapabilityStatement.TypeRestfulInteraction;
+
+namespace MeasureEval.Api.Measures;
+
+/// <summary>Measures, their logic libraries and value sets, and $evaluate-measure.</summary>
+public static class MeasureEndpoints
+{
+    private const string EvaluateDefinition = "http://hl7.org/fhir/OperationDefinition/Measure-evaluate-measure";
+    private static readonly string[] DefinitionBody = [ReportExtensions.DefinitionMediaType];
+
+    public static IEndpointRouteBuilder MapMeasureEndpoints(this IEndpointRouteBuilder app)
+    {
+        var group = app.MapGroup("").WithTags("Measures");
+        var fhirBody = FhirEndpointExtensions.ResourceMediaTypes;
+        group.MapGet("/Measure", ListMeasuresAsync).WithName("measure-list").WithSummary("Every loaded measure as a FHIR Measure")
+            .WithFhir([], [200], 406);
+        group.MapGet("/Measure/{id}", ReadMeasureAsync).WithName("measure-read").WithSummary("One measure as a FHIR Measure whose criteria name the logic")
+            .WithFhir([], [200], 404, 406);
+        group.MapPut("/Measure/{id}", PutMeasureAsync).WithName("measure-put")
+            .WithSummary("Load or replace a measure written in the definition format (application/vnd.measureeval+json); kept across restarts")
+            .WithFhir(DefinitionBody, [200, 201], 400, 406, 413, 415);
+        group.MapGet("/Library/{id}", ReadLibraryAsync).WithName("library-read").WithSummary("The definition file of a measure or shared library, base64 in Library.content")
+            .WithFhir([], [200], 404, 406);
+        group.MapPut("/ValueSet/{id}", PutValueSetAsync).WithName("valueset-put").WithSummary("Load or replace a value set (FHIR R4 ValueSet) without a rebuild; kept across restarts")
+            .WithFhir(fhirBody, [200, 201], 400, 406, 413, 415);
+        group.MapGet("/Measure/{id}/$evaluate-measure", EvaluateGetAsync).WithName("evaluate-measure-get")
+            .WithSummary("Evaluate one measure: periodStart, periodEnd, subject (Patient/x or Group/x), practitioner, reportType")
+            .WithFhir([], [200], 400, 404, 406)
+            .WithFhirOperation("evaluate-measure", EvaluateDefinition, "Measure", "periodStart, periodEnd (dates, default the current calendar year), subject Patient/x or Group/x, practitioner (Patient.generalPractitioner), reportType subject | subject-list | population");
+        group.MapPost("/Measure/{id}/$evaluate-measure", EvaluatePostAsync).WithName("evaluate-measure-post")
+            .WithSummary("Evaluate one measure with a Parameters body")
+            .WithFhir(fhirBody, [200], 400, 404, 406, 413, 415);
+        group.MapPost("/Measure/$evaluate-measure", EvaluateManyAsync).WithName("evaluate-measures")
+            .WithSummary("Evaluate several measures (Parameters, measureId repeated) in one pass over the patients; a Bundle of MeasureReports")
+            .WithFhir(fhirBody, [200], 400, 404, 406, 413, 415)
+            .WithFhirOperation("evaluate-measure", EvaluateDefinition, "Measure", "type level: measureId repeated; the other parameters as on an instance; answers a Bundle of MeasureReports, one per measure");
+        return app;
+    }
+
+    public static async Task<FhirResult> ListMeasuresAsync(HttpRequest request, MeasureCatalog catalog, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(catalog);
+        var repository = await catalog.GetAsync(cancellationToken);
+        var baseUrl = FhirBaseUrl.Of(request);
+        var bundle = new Bundle { Id = Guid.NewGuid().ToString(), Type = Bundle.BundleType.Searchset, Total = repository.Measures.Count };
+        bundle.Link.Add(new Bundle.LinkComponent { Relation = "self", Url = $"{baseUrl}/Measure" });
+        foreach (var measure in repository.Measures)
+        {
+            bundle.Entry.Add(new Bundle.EntryComponent
+            {
+                FullUrl = $"{baseUrl}/Measure/{measure.Id}",
+                Resource = MeasureResources.ToMeasure(measure),
+                Search = new Bundle.SearchComponent { Mode = Bundle.SearchEntryMode.Match },
+            });
+        }
+
+        return FhirResult.Of(200, bundle);
+    }
+
+    public static async Task<FhirResult> ReadMeasureAsync(string id, MeasureCatalog catalog, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(catalog);
+        var repository = await catalog.GetAsync(cancellationToken);
+        return repository.TryGetMeasure(id, out var measure)
+            ? FhirResult.Of(200, MeasureResources.ToMeasure(measure))
+            : FhirResult.Outcome(new FhirIssue(MeasureErrors.UnknownMeasure, $"no measure '{id}' is loaded"));
+    }
+
+    /// <summary>A measure's or definition library's file; any other Library is read from the store as usual.</summary>
+    public static async Task<FhirResult> ReadLibraryAsync(string id, MeasureCatalog catalog, IResourceStore store, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(catalog);
+        var repository = await catalog.GetAsync(cancellationToken);
+        if (repository.TryGetMeasure(id, out var measure))
+        {
+            return FhirResult.Of(200, MeasureResources.ToLibrary(measure));
+        }
+
+        return repository.TryGetLibrary(id, out var library)
+            ? FhirResult.Of(200, MeasureResources.ToLibrary(library))
+            : await Resources.ResourceEndpoints.ReadAsync("Library", id, store, cancellationToken);
+    }
+
+    public static async Task<FhirResult> PutMeasureAsync(string id, HttpRequest request, MeasureCatalog catalog, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(request);
+        ArgumentNullException.ThrowIfNull(catalog);
+        ArgumentNullException.ThrowIfNull(options);
+        var body = await ReadBytesAsync(request, options.Value.MaxBodyBytes, cancellationToken);
+        if (body is null)
+        {
+            return FhirResult.Outcome(new FhirIssue(ErrorCatalogue.BodyTooLarge, $"The body exceeds the limit of {options.Value.MaxBodyBytes} bytes (Ingest:MaxBodyBytes)."));
+        }
+
+        var file = new DefinitionFile($"{id}.measure.json", DefinitionFileKind.Measure, body);
+        var library = new Library
+        {
+            Id = id,
+            Status = PublicationStatus.Active,
+            Type = new CodeableConcept("http://terminology.hl7.org/CodeSystem/library-type", "logic-library"),
+            Identifier = [new Identifier(MeasureCatalog.DefinitionFileSystem, file.Name)],
+            Content = [new Attachment { ContentType = ReportExtensions.DefinitionMediaType, Data = body }],
+        };
+        var (issues, created) = await catalog.PutAsync(file, library, cancellationToken);
+        if (issues.Count > 0)
+        {
+            return FhirResult.Outcome(ToIssues(issues));
+        }
+
+        var repository = await catalog.GetAsync(cancellationToken);
+        return FhirResult.Of(created ? 201 : 200, MeasureResources.ToMeasure(repository.TryGetMeasure(id, out var measure) ? measure : throw new InvalidOperationException("a measure that loaded is in the repository")));
+    }
+
+    public static async Task<FhirResult> PutValueSetAsync(string id, HttpRequest request, MeasureCatalog catalog, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(request);
+        ArgumentNullException.ThrowIfNull(catalog);
+        ArgumentNullException.ThrowIfNull(options);
+        var parsed = await FhirRequestBody.ReadResourceAsync(request, options.Value, cancellationToken);
+        if (!parsed.Succeeded)
+        {
+            return FhirResult.Outcome(parsed.Issues);
+        }
+
+        if (parsed.Resource is not ValueSet valueSet)
+        {
+            return FhirResult.Outcome(new FhirIssue(ErrorCatalogue.ResourceTypeMismatch, $"the body is a {parsed.Resource!.TypeName}, not a ValueSet", "ValueSet"));
+        }
+
+        if (valueSet.Id != id)
+        {
+            return FhirResult.Outcome(new FhirIssue(ErrorCatalogue.IdMismatch, $"the body's id '{valueSet.Id}' is not '{id}'", "ValueSet.id"));
+        }
+
+        var file = new DefinitionFile($"valuesets/{id}.json", DefinitionFileKind.ValueSet, System.Text.Encoding.UTF8.GetBytes(FhirJson.Serialize(valueSet)));
+        var (issues, created) = await catalog.PutAsync(file, valueSet, cancellationToken);
+        return issues.Count > 0 ? FhirResult.Outcome(ToIssues(issues, fhirRoot: "ValueSet")) : FhirResult.Of(created ? 201 : 200, valueSet);
+    }
+
+    public static async Task<FhirResult> EvaluateGetAsync(string id, HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(request);
+        var issues = new List<FhirIssue>();
+        if (!EvaluateParameters.TryRead(request.Query, time, issues, out var parameters))
+        {
+            return FhirResult.Outcome(issues);
+        }
+
+        return await EvaluateOneAsync(id, parameters!, catalog, service, cancellationToken);
+    }
+
+    public static async Task<FhirResult> EvaluatePostAsync(string id, HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+    {
+        var (parameters, error) = await ReadParametersAsync(request, time, options, cancellationToken);
+        return error ?? await EvaluateOneAsync(id, parameters!, catalog, service, cancellationToken);
+    }
+
+    public static async Task<FhirResult> EvaluateManyAsync(HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(catalog);
+        ArgumentNullException.ThrowIfNull(service);
+        var (parameters, error) = await ReadParametersAsync(request, time, options, cancellationToken);
+        if (error is not null)
+        {
+            return error;
+        }
+
+        if (parameters!.MeasureIds.Count == 0)
+        {
+            return FhirResult.Outcome(new FhirIssue(MeasureErrors.InvalidParameter, "name the measures with measureId (repeated)", "measureId"));
+        }
+
+        var repository = await catalog.GetAsync(cancellationToken);
+        var measures = new List<MeasureDefinition>();
+        var issues = new List<FhirIssue>();
+        foreach (var measureId in parameters.MeasureIds.Distinct(StringComparer.Ordinal))
+        {
+            if (repository.TryGetMeasure(measureId, out var measure))
+            {
+                measures.Add(measure);
+            }
+            else
+            {
+                issues.Add(new FhirIssue(MeasureErrors.UnknownMeasure, $"no measure '{measureId}' is loaded", "measureId"));
+            }
+        }
+
+        if (issues.Count > 0)
+        {
+            return FhirResult.Outcome(issues);
+        }
+
+        var (reports, failure) = await service.EvaluateAsync(repository, measures, parameters, cancellationToken);
+        if (failure is not null)
+        {
+            return FhirResult.Outcome(failure);
+        }
+
+        var bundle = new Bundle { Id = Guid.NewGuid().ToString(), Type = Bundle.BundleType.Collection };
+        foreach (var report in reports)
+        {
+            bundle.Entry.Add(new Bundle.EntryComponent { FullUrl = $"urn:uuid:{Guid.Parse(report.Id!)}", Resource = report });
+        }
+
+        return FhirResult.Of(200, bundle);
+    }
+
+    private static async Task<FhirResult> EvaluateOneAsync(string id, EvaluateParameters parameters, MeasureCatalog catalog, MeasureEvaluationService service, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(catalog);
+        ArgumentNullException.ThrowIfNull(service);
+        var repository = await catalog.GetAsync(cancellationToken);
+        if (!repository.TryGetMeasure(id, out var measure))
+        {
+            return FhirResult.Outcome(new FhirIssue(MeasureErrors.UnknownMeasure, $"no measure '{id}' is loaded"));
+        }
+
+        var (reports, failure) = await service.EvaluateAsync(repository, [measure], parameters, cancellationToken);
+        return failure is not null ? FhirResult.Outcome(failure) : FhirResult.Of(200, reports[0]);
+    }
+
+    private static async Task<(EvaluateParameters? Parameters, FhirResult? Error)> ReadParametersAsync(HttpRequest request, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(request);
+        ArgumentNullException.ThrowIfNull(options);
+        var parsed = await FhirRequestBody.ReadResourceAsync(request, options.Value, cancellationToken);
+        if (!parsed.Succeeded)
+        {
+            return (null, FhirResult.Outcome(parsed.Issues));
+        }
+
+        if (parsed.Resource is not Parameters body)
+        {
+            return (null, FhirResult.Outcome(new FhirIssue(ErrorCatalogue.ResourceTypeMismatch, $"the body is a {parsed.Resource!.TypeName}, not Parameters", "Parameters")));
+        }
+
+        var issues = new List<FhirIssue>();
+        return EvaluateParameters.TryRead(body, time, issues, out var parameters) ? (parameters, null) : (null, FhirResult.Outcome(issues));
+    }
+
+    /// <summary>Definition issues as OperationOutcome issues; the JSON path becomes the expression ("populations.numerator.any[2]").</summary>
+    private static List<FhirIssue> ToIssues(IReadOnlyList<DefinitionIssue> issues, string? fhirRoot = null) =>
+        [.. issues.Select(i =>
+        {
+            var path = i.Path == "$" ? "" : i.Path.TrimStart('$').TrimStart('.');
+            var expression = fhirRoot is null ? (path.Length == 0 ? null : path) : (path.Length == 0 ? fhirRoot : $"{fhirRoot}.{path}");
+            return new FhirIssue(MeasureErrors.InvalidDefinition, $"{i.File}: {i.Message}", expression);
+        })];
+
+    private static async Task<byte[]?> ReadBytesAsync(HttpRequest request, long limit, CancellationToken cancellationToken)
+    {
+        if (request.ContentLength > limit)
+        {
+            return null;
+        }
+
+        var reader = request.BodyReader;
+        while (true)
+        {
+            var read = await reader.ReadAsync(cancellationToken);
+            if (read.Buffer.Length > limit)
+            {
+                reader.AdvanceTo(read.Buffer.End);
+                return null;
+            }
+
+            if (read.IsCompleted)
+            {
+                var bytes = read.Buffer.ToArray();
+                reader.AdvanceTo(read.Buffer.End);
+                return bytes;
+            }
+
+            reader.AdvanceTo(read.Buffer.Start, read.Buffer.End);
+        }
+    }
+}

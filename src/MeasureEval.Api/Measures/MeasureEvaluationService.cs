@@ -1,0 +1,77 @@
+using Hl7.Fhir.Model;
+using MeasureEval.Api.Errors;
+using MeasureEval.Core.Fhir;
+using MeasureEval.Core.Index;
+using MeasureEval.Core.Storage;
+using MeasureEval.Engine;
+using MeasureEval.Engine.Reports;
+
+namespace MeasureEval.Api.Measures;
+
+/// <summary>Runs $evaluate-measure: picks the patients (one, a Group's members, everyone), streams them once for all measures.</summary>
+public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time)
+{
+    public async Task<(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error)> EvaluateAsync(
+        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, CancellationToken cancellationToken)
+    {
+        var builder = new MeasureReportBuilder(time);
+        var evaluator = new MeasureEvaluator(repository, new StoreRecordSource(store));
+        IReadOnlyCollection<string>? patientIds = null;
+        if (parameters.SubjectType == "Patient")
+        {
+            patientIds = [parameters.SubjectId!];
+        }
+        else if (parameters.SubjectType == "Group")
+        {
+            var members = await GroupMembersAsync(parameters.SubjectId!, cancellationToken);
+            if (members is null)
+            {
+                return ([], new FhirIssue(MeasureErrors.UnknownSubject, $"Group/{parameters.SubjectId} is not stored", "subject"));
+            }
+
+            patientIds = members;
+        }
+
+        if (parameters.ReportKind == ReportKind.Subject)
+        {
+            var facts = await store.GetPatientFactsAsync(parameters.SubjectId!, cancellationToken);
+            if (facts is null)
+            {
+                return ([], new FhirIssue(MeasureErrors.UnknownSubject, $"nothing is stored for Patient/{parameters.SubjectId}", "subject"));
+            }
+
+            var results = evaluator.EvaluateAll(measures, facts, parameters.Period);
+            return ([.. measures.Select((m, i) => builder.Individual(m, parameters.Period, results[i]))], null);
+        }
+
+        var patients = Filter(store.StreamPatientFactsAsync(patientIds, cancellationToken), parameters.PractitionerReference, cancellationToken);
+        var summaries = await new PopulationEvaluator(evaluator).SummarizeAsync(
+            patients, measures, parameters.Period, keepSubjects: parameters.ReportKind == ReportKind.SubjectList, cancellationToken);
+        return ([.. summaries.Select(s => parameters.ReportKind == ReportKind.SubjectList ? builder.SubjectList(s) : builder.Summary(s))], null);
+    }
+
+    private static async IAsyncEnumerable<PatientFacts> Filter(
+        IAsyncEnumerable<PatientFacts> patients, string? practitioner, [System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellationToken)
+    {
+        await foreach (var patient in patients.WithCancellation(cancellationToken))
+        {
+            if (practitioner is null || patient.Demographics?.GeneralPractitioner == practitioner)
+            {
+                yield return patient;
+            }
+        }
+    }
+
+    /// <summary>The patient ids among the Group's members (other member types are not patients), or null when no such Group is stored.</summary>
+    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, CancellationToken cancellationToken)
+    {
+        var stored = await store.ReadAsync("Group", id, cancellationToken);
+        if (stored is not { Deleted: false, Json: { } json })
+        {
+            return null;
+        }
+
+        var group = FhirJson.Parse<Group>(json);
+        return [.. group.Member.Where(m => m.Inactive != true).Select(m => FactExtractor.PatientIdOf(m.Entity)).OfType<string>().Distinct(StringComparer.Ordinal)];
+    }
+}
