@@ -5,6 +5,7 @@ using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Ingest;
 using MeasureEval.Core.Fhir;
+using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Reports;
 using Microsoft.AspNetCore.Builder;
@@ -79,7 +80,8 @@ public static class MeasureEndpoints
             : FhirResult.Outcome(new FhirIssue(MeasureErrors.UnknownMeasure, $"no measure '{id}' is loaded"));
     }
 
-    public static async Task<FhirResult> ReadLibraryAsync(string id, MeasureCatalog catalog, CancellationToken cancellationToken)
+    /// <summary>A measure's or definition library's file; any other Library is read from the store as usual.</summary>
+    public static async Task<FhirResult> ReadLibraryAsync(string id, MeasureCatalog catalog, IResourceStore store, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(catalog);
         var repository = await catalog.GetAsync(cancellationToken);
@@ -90,7 +92,7 @@ public static class MeasureEndpoints
 
         return repository.TryGetLibrary(id, out var library)
             ? FhirResult.Of(200, MeasureResources.ToLibrary(library))
-            : FhirResult.Outcome(new FhirIssue(ErrorCatalogue.NotFound, $"no measure or definition library '{id}' is loaded"));
+            : await Resources.ResourceEndpoints.ReadAsync("Library", id, store, cancellationToken);
     }
 
     public static async Task<FhirResult> PutMeasureAsync(string id, HttpRequest request, MeasureCatalog catalog, IOptions<IngestOptions> options, CancellationToken cancellationToken)

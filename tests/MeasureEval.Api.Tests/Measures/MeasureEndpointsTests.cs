@@ -46,6 +46,15 @@ public sealed class MeasureEndpointsTests : IDisposable
     }
 
     [Fact]
+    public async System.Threading.Tasks.Task ReadLibraryAsync_NeitherMeasureNorLibrary_Returns404()
+    {
+        using var client = _factory.CreateClient();
+        var response = await client.GetAsync(new Uri("/Library/no-such-library", UriKind.Relative));
+
+        Assert.Equal(HttpStatusCode.NotFound, response.StatusCode);
+    }
+
+    [Fact]
     public async System.Threading.Tasks.Task EvaluateGetAsync_StoredPanel_CountsPopulationsAndValidates()
     {
         using var client = _factory.CreateClient();
