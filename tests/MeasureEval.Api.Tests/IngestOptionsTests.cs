@@ -1,6 +1,7 @@
 using System.Net;
 using System.Text;
 using Hl7.Fhir.Model;
+using Microsoft.AspNetCore.Hosting;
 using MeasureEval.Api.Tests.Support;
 using static MeasureEval.Api.Tests.Support.Fhir;
 
@@ -69,5 +70,15 @@ public sealed class IngestOptionsTests(SmallLimitsApiFactory factory) : IClassFi
         Assert.Equal(5, ((Integer)Param(result, "stored").Value).Value);
         var found = await ReadAsync<Bundle>(await _client.GetAsync("/Patient?_id=batch-1,batch-2,batch-3,batch-4,batch-5&_count=0"));
         Assert.Equal(5, found.Total);
+    }
+
+    [Fact]
+    public void Validation_DepthBelowMinimum_HostDoesNotStart()
+    {
+        using var invalid = new ApiFactory().WithWebHostBuilder(builder => builder.UseSetting("Ingest:MaxJsonDepth", "2"));
+
+        var error = Assert.Throws<Microsoft.Extensions.Options.OptionsValidationException>(() => invalid.CreateClient());
+
+        Assert.Contains("MaxJsonDepth", error.Message, StringComparison.Ordinal);
     }
 }

@@ -63,6 +63,14 @@ public class ReportEndpointsTests(DemoPopulationHost host)
         var link = "/Measure/$care-gaps-export?periodStart=2026-01-01&amp;periodEnd=2026-12-31&amp;measureId=colorectal-cancer-screening&amp;status=open-gap"
             + $"&amp;practitioner={Uri.EscapeDataString(panel)}&amp;_format=csv";
         Assert.Contains($"href=\"{link}\"", html, StringComparison.Ordinal);
+
+        // The export behind the link lists exactly the panel's open gaps that the report counts.
+        var rate = json.RootElement.GetProperty("panels").GetProperty("panels").EnumerateArray().First(p => p.GetProperty("panel").GetString() == panel).GetProperty("rate");
+        var open = rate.GetProperty("n").GetInt32() - rate.GetProperty("numerator").GetInt32();
+        using var export = await _client.GetAsync(new Uri(System.Net.WebUtility.HtmlDecode(link), UriKind.Relative));
+        Assert.Equal(HttpStatusCode.OK, export.StatusCode);
+        var rows = (await export.Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries);
+        Assert.Equal(open, rows.Length - 1);
     }
 
     [Fact]
