@@ -3,12 +3,14 @@ using MeasureEval.Api.CareGaps;
 using MeasureEval.Api.Hosting;
 using MeasureEval.Api.Logging;
 using MeasureEval.Api.Measures;
+using MeasureEval.Api.Security;
 using MeasureEval.Storage;
 
 var builder = WebApplication.CreateBuilder(LoggingSetup.ExpandFlags(args));
 builder.AddMeasureEvalLogging();
 builder.Services.AddMeasureEvalStorage();
 builder.Services.AddMeasureEvalApi();
+builder.Services.AddMeasureEvalSecurity();
 builder.Services.AddMeasureEvalMeasures();
 builder.Services.AddMeasureEvalAnalytics();
 builder.Services.AddMeasureEvalCareGaps();
