@@ -4,12 +4,14 @@ using MeasureEval.Api.Demo;
 using MeasureEval.Api.Hosting;
 using MeasureEval.Api.Logging;
 using MeasureEval.Api.Measures;
+using MeasureEval.Api.Security;
 using MeasureEval.Storage;
 
 var builder = WebApplication.CreateBuilder(LoggingSetup.ExpandFlags(DemoServiceCollectionExtensions.ExpandDemoFlag(args)));
 builder.AddMeasureEvalLogging();
 builder.Services.AddMeasureEvalStorage();
 builder.Services.AddMeasureEvalApi();
+builder.Services.AddMeasureEvalSecurity();
 builder.Services.AddMeasureEvalMeasures();
 builder.Services.AddMeasureEvalAnalytics();
 builder.Services.AddMeasureEvalCareGaps();

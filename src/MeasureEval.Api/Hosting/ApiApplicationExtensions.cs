@@ -25,6 +25,8 @@ public static class ApiApplicationExtensions
         app.UseMeasureEvalOpenApi();
         // Routing after the docs middleware, so requests it serves are not matched (and logged) as FHIR routes.
         app.UseRouting();
+        app.UseAuthentication();
+        app.UseAuthorization();
         return app;
     }
 
