@@ -1,5 +1,6 @@
 using Microsoft.AspNetCore.Hosting;
 using Microsoft.AspNetCore.Mvc.Testing;
+using MeasureEval.Testing;
 using Microsoft.Data.Sqlite;
 
 namespace MeasureEval.Reliability.Tests.Support;
@@ -11,7 +12,13 @@ public sealed class ReliabilityApiFactory : WebApplicationFactory<Program>
 
     public string DatabasePath => Path.Combine(_directory, "store.db");
 
-    public HttpClient Client() => CreateClient();
+    public HttpClient Client()
+    {
+        var client = CreateClient();
+        // Admin: these tests ingest and evaluate with the same client.
+        client.DefaultRequestHeaders.Authorization = TestTokens.Header("admin");
+        return client;
+    }
 
     protected override void ConfigureWebHost(IWebHostBuilder builder)
     {
@@ -19,6 +26,10 @@ public sealed class ReliabilityApiFactory : WebApplicationFactory<Program>
         builder.UseSetting("Storage:Provider", "Sqlite");
         builder.UseSetting("Storage:ConnectionString", $"Data Source={DatabasePath}");
         builder.UseSetting("Measures:Directory", Path.Combine(RepositoryRoot.Path, "measures"));
+        foreach (var (key, value) in TestTokens.Settings)
+        {
+            builder.UseSetting(key, value);
+        }
     }
 
     protected override void Dispose(bool disposing)
