@@ -1,12 +1,13 @@
 using MeasureEval.Api.Analytics;
 using MeasureEval.Api.CareGaps;
+using MeasureEval.Api.Demo;
 using MeasureEval.Api.Hosting;
 using MeasureEval.Api.Logging;
 using MeasureEval.Api.Measures;
 using MeasureEval.Api.Security;
 using MeasureEval.Storage;
 
-var builder = WebApplication.CreateBuilder(LoggingSetup.ExpandFlags(args));
+var builder = WebApplication.CreateBuilder(LoggingSetup.ExpandFlags(DemoServiceCollectionExtensions.ExpandDemoFlag(args)));
 builder.AddMeasureEvalLogging();
 builder.Services.AddMeasureEvalStorage();
 builder.Services.AddMeasureEvalApi();
@@ -14,6 +15,7 @@ builder.Services.AddMeasureEvalSecurity();
 builder.Services.AddMeasureEvalMeasures();
 builder.Services.AddMeasureEvalAnalytics();
 builder.Services.AddMeasureEvalCareGaps();
+builder.Services.AddMeasureEvalDemo();
 
 var app = builder.Build();
 app.UseMeasureEvalApi();

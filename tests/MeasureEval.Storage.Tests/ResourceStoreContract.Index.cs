@@ -7,6 +7,8 @@ namespace MeasureEval.Storage.Tests;
 
 public abstract partial class ResourceStoreContract
 {
+    protected sealed record IndexBatch(int Entries, int Facts);
+
     [SkippableFact]
     public async Task GetPatientFactsAsync_AfterWrites_HoldsDemographicsFactsAndCoverage()
     {
@@ -133,10 +135,9 @@ public abstract partial class ResourceStoreContract
     [SkippableFact]
     public async Task UpdateAsync_ManyResourcesInOneSession_IndexesEveryPatient()
     {
-        await using var store = await CreateStoreAsync();
-
-        // More patients than a session keeps in memory, so entries are written back in several batches.
-        const int patients = 2600;
+        // Fewer entries and facts kept in memory than the session touches, so entries are written back in several batches.
+        await using var store = await CreateStoreAsync(new IndexBatch(Entries: 500, Facts: 1500));
+        const int patients = 1300;
         await using (var session = await store.BeginWriteAsync(default))
         {
             for (var i = 0; i < patients; i++)

@@ -20,7 +20,10 @@ public abstract partial class ResourceStoreContract
     protected FakeTimeProvider Time { get; } = new(Start);
 
     /// <summary>A new, initialized, empty store.</summary>
-    protected abstract Task<SqlResourceStore> CreateStoreAsync();
+    protected Task<SqlResourceStore> CreateStoreAsync() => CreateStoreAsync(null);
+
+    /// <summary>A new, initialized, empty store; with <paramref name="batch"/>, sessions keep at most that many index entries and facts in memory.</summary>
+    protected abstract Task<SqlResourceStore> CreateStoreAsync(IndexBatch? batch);
 
     /// <summary>Runs SQL on the last created store's database behind its back (to stage what an older build left).</summary>
     protected abstract Task ExecuteSqlAsync(string sql);

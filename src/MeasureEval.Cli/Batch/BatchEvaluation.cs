@@ -10,7 +10,11 @@ namespace MeasureEval.Cli.Batch;
 /// </summary>
 internal sealed class BatchEvaluation(MeasureEvaluator evaluator, IReadOnlyList<MeasureDefinition> measures, MeasurementPeriod period)
 {
-    private const int BatchSize = 512;
+    /// <summary>
+    /// Small on purpose: a batch's facts and results must die young. With 512-patient batches they survived into gen 2
+    /// (77 gen-2 collections per 100,000 patients) and evaluation took twice as long; at 32 there are almost none.
+    /// </summary>
+    private const int BatchSize = 32;
 
     public async Task<IReadOnlyList<PopulationSummary>> RunAsync(
         IAsyncEnumerable<PatientFacts> patients, Action<IReadOnlyList<PatientResult>>? perPatient, IProgress<long>? progress, CancellationToken cancellationToken)

@@ -10,6 +10,9 @@ internal sealed class PatientIndexEntry
 
     public Demographics? Demographics { get; private set; }
 
+    /// <summary>Facts and coverages held (what the entry costs in memory, roughly).</summary>
+    public int Count => _facts.Count + _coverages.Count;
+
     public bool IsEmpty => Demographics is null && _facts.Count == 0 && _coverages.Count == 0;
 
     public static PatientIndexEntry From(PatientFacts? stored)

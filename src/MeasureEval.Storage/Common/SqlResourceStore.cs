@@ -27,6 +27,15 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
 
     internal TimeProvider TimeProvider { get; }
 
+    /// <summary>
+    /// Index entries a write session holds in memory before writing them back, and the facts they may hold together
+    /// (a few hundred bytes each): bounds a bulk session's memory while letting one session over several resource types
+    /// rewrite each patient's entry once.
+    /// </summary>
+    internal int IndexEntryBatch { get; init; } = 16_384;
+
+    internal int IndexFactBatch { get; init; } = 250_000;
+
     protected ILogger Logger { get; }
 
     /// <summary>Scripts that bring the schema from version i to i+1 (index i). Never edit a released one: append.</summary>
@@ -356,7 +365,9 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         for (var i = 0; i < values.Length; i++)
         {
             var parameter = command.CreateParameter();
-            parameter.ParameterName = "p" + i.ToString(CultureInfo.InvariantCulture);
+
+            // With its prefix: Microsoft.Data.Sqlite otherwise tries "@", ":" and "$" on every execution.
+            parameter.ParameterName = "@p" + i.ToString(CultureInfo.InvariantCulture);
             parameter.Value = values[i] ?? DBNull.Value;
             command.Parameters.Add(parameter);
         }

@@ -16,8 +16,6 @@ namespace MeasureEval.Storage.Common;
 /// </summary>
 internal sealed class SqlStoreSession : IStoreSession
 {
-    /// <summary>Index entries held in memory before they are written back (bounds a bulk session's memory).</summary>
-    private const int IndexEntryBatch = 2048;
 
     private readonly SqlResourceStore _store;
     private readonly DbConnection _connection;
@@ -28,6 +26,7 @@ internal sealed class SqlStoreSession : IStoreSession
     private readonly List<(string Sql, object?[] Values)> _queued = [];
     private bool _finished;
     private int _resourceWrites;
+    private int _cachedFacts;
 
     public SqlStoreSession(SqlResourceStore store, DbConnection connection, DbTransaction transaction, IDisposable? writer)
     {
@@ -202,6 +201,7 @@ internal sealed class SqlStoreSession : IStoreSession
                 if (contribution is not null)
                 {
                     (await EntryAsync(contribution.PatientId, cancellationToken).ConfigureAwait(false)).Add(contribution);
+                    _cachedFacts++;
                 }
             }
         }
@@ -266,6 +266,7 @@ internal sealed class SqlStoreSession : IStoreSession
         if (contribution is not null)
         {
             (await EntryAsync(contribution.PatientId, cancellationToken).ConfigureAwait(false)).Add(contribution);
+            _cachedFacts++;
         }
 
         return new StoredResource(type, id, version, now, Deleted: false, json);
@@ -316,7 +317,7 @@ internal sealed class SqlStoreSession : IStoreSession
             return entry;
         }
 
-        if (_entries.Count >= IndexEntryBatch)
+        if (_entries.Count >= _store.IndexEntryBatch || _cachedFacts >= _store.IndexFactBatch)
         {
             await FlushIndexAsync(cancellationToken).ConfigureAwait(false);
         }
@@ -329,6 +330,7 @@ internal sealed class SqlStoreSession : IStoreSession
                 : null,
             cancellationToken).ConfigureAwait(false);
         entry = PatientIndexEntry.From(stored);
+        _cachedFacts += entry.Count;
         _entries.Add(patientId, entry);
         return entry;
     }
@@ -345,6 +347,7 @@ internal sealed class SqlStoreSession : IStoreSession
             : (StoreSql.UpsertIndexEntry, [e.Key, PatientFactsCodec.Encode(e.Value.ToFacts(e.Key))])).ToList();
         await RunAsync(statements, cancellationToken).ConfigureAwait(false);
         _entries.Clear();
+        _cachedFacts = 0;
     }
 
     private DateTimeOffset Now()
@@ -423,7 +426,7 @@ internal sealed class SqlStoreSession : IStoreSession
         for (var i = 0; i < values.Length; i++)
         {
             var parameter = command.CreateParameter();
-            parameter.ParameterName = "p" + i.ToString(CultureInfo.InvariantCulture);
+            parameter.ParameterName = "@p" + i.ToString(CultureInfo.InvariantCulture);
             parameter.Value = values[i] ?? DBNull.Value;
             command.Parameters.Add(parameter);
         }

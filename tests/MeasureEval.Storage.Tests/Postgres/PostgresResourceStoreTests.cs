@@ -33,11 +33,13 @@ public sealed class PostgresResourceStoreTests(PostgresServer server) : Resource
         await command.ExecuteNonQueryAsync();
     }
 
-    protected override async System.Threading.Tasks.Task<SqlResourceStore> CreateStoreAsync()
+    protected override async System.Threading.Tasks.Task<SqlResourceStore> CreateStoreAsync(IndexBatch? batch)
     {
         Skip.IfNot(server.IsAvailable, server.UnavailableReason);
         _connectionString = await server.CreateSchemaAsync();
-        var store = new PostgresResourceStore(_connectionString, Time, NullLogger<PostgresResourceStore>.Instance);
+        var store = batch is null
+            ? new PostgresResourceStore(_connectionString, Time, NullLogger<PostgresResourceStore>.Instance)
+            : new PostgresResourceStore(_connectionString, Time, NullLogger<PostgresResourceStore>.Instance) { IndexEntryBatch = batch.Entries, IndexFactBatch = batch.Facts };
         await store.InitializeAsync(default);
         return store;
     }

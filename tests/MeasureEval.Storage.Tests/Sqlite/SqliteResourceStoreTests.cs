@@ -81,9 +81,12 @@ public sealed class SqliteResourceStoreTests : ResourceStoreContract, IDisposabl
         await command.ExecuteNonQueryAsync();
     }
 
-    protected override async System.Threading.Tasks.Task<SqlResourceStore> CreateStoreAsync()
+    protected override async System.Threading.Tasks.Task<SqlResourceStore> CreateStoreAsync(IndexBatch? batch)
     {
-        var store = new SqliteResourceStore($"Data Source={Path.Combine(_directory.FullName, "store.db")}", Time, NullLogger<SqliteResourceStore>.Instance);
+        var connectionString = $"Data Source={Path.Combine(_directory.FullName, "store.db")}";
+        var store = batch is null
+            ? new SqliteResourceStore(connectionString, Time, NullLogger<SqliteResourceStore>.Instance)
+            : new SqliteResourceStore(connectionString, Time, NullLogger<SqliteResourceStore>.Instance) { IndexEntryBatch = batch.Entries, IndexFactBatch = batch.Facts };
         await store.InitializeAsync(default);
         return store;
     }
