@@ -7,8 +7,10 @@ using MeasureEval.Api.Logging;
 using MeasureEval.Api.OpenApi;
 using MeasureEval.Api.Resources;
 using MeasureEval.Api.Search;
+using MeasureEval.Api.Security;
 using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Routing;
+using Microsoft.Extensions.Hosting;
 
 namespace MeasureEval.Api.Hosting;
 
@@ -19,6 +21,12 @@ public static class ApiApplicationExtensions
     {
         ArgumentNullException.ThrowIfNull(app);
         app.UseMiddleware<RequestIdMiddleware>();
+        app.UseMiddleware<SecurityHeadersMiddleware>();
+        if (!app.Environment.IsDevelopment())
+        {
+            app.UseHttpsRedirection();
+        }
+
         app.UseMeasureEvalRequestLogging();
         app.UseExceptionHandler();
         app.UseFhirStatusCodeOutcomes();

@@ -82,6 +82,18 @@ public sealed class AccessPoliciesTests(ApiFactory factory) : IClassFixture<ApiF
         Assert.Equal(HttpStatusCode.OK, await SendAsync("GET", path, null));
     }
 
+    [Fact]
+    public async Task Add_AnyAnswer_CarriesSecurityHeaders()
+    {
+        using var client = factory.CreateClient();
+        using var response = await client.GetAsync(new Uri("/metadata", UriKind.Relative));
+
+        // OWASP Secure Headers Project (common practice values).
+        Assert.Equal("nosniff", response.Headers.GetValues("X-Content-Type-Options").Single());
+        Assert.Equal("DENY", response.Headers.GetValues("X-Frame-Options").Single());
+        Assert.Equal("no-referrer", response.Headers.GetValues("Referrer-Policy").Single());
+    }
+
     private async Task<HttpStatusCode> SendAsync(string method, string path, AuthenticationHeaderValue? auth)
     {
         using var client = factory.CreateClient();
