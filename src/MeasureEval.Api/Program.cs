@@ -3,6 +3,7 @@ using MeasureEval.Api.CareGaps;
 using MeasureEval.Api.Hosting;
 using MeasureEval.Api.Logging;
 using MeasureEval.Api.Measures;
+using MeasureEval.Cluster.Hosting;
 using MeasureEval.Storage;
 
 var builder = WebApplication.CreateBuilder(LoggingSetup.ExpandFlags(args));
@@ -12,6 +13,7 @@ builder.Services.AddMeasureEvalApi();
 builder.Services.AddMeasureEvalMeasures();
 builder.Services.AddMeasureEvalAnalytics();
 builder.Services.AddMeasureEvalCareGaps();
+builder.AddMeasureEvalCluster((services, cancellationToken) => services.GetRequiredService<MeasureCatalog>().GetAsync(cancellationToken));
 
 var app = builder.Build();
 app.UseMeasureEvalApi();

@@ -16,6 +16,9 @@ public sealed class MeasureClusterOptions
     /// <summary>Membership store (StackExchange.Redis format, e.g. <c>127.0.0.1:6379</c>).</summary>
     public string RedisConnectionString { get; set; } = string.Empty;
 
+    /// <summary>Address the other nodes reach this one at (default loopback, for one host).</summary>
+    public string? AdvertisedAddress { get; set; }
+
     /// <summary>Silo-to-silo port; each node on one host needs its own.</summary>
     public int SiloPort { get; set; } = 11111;
 
