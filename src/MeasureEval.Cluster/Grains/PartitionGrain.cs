@@ -4,13 +4,15 @@ using MeasureEval.Cluster.Placement;
 using MeasureEval.Core.Index;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
+using Microsoft.Extensions.Logging;
 using Orleans.Runtime;
 
 namespace MeasureEval.Cluster.Grains;
 
 /// <summary>Streams only its partition's patients from the shared store and aggregates them on the evaluation threads.</summary>
 [PartitionSpreadPlacement]
-internal sealed class PartitionGrain(IResourceStore store, ClusterMeasureSource measures, EvaluationScheduler scheduler, ILocalSiloDetails silo)
+internal sealed partial class PartitionGrain(
+    IResourceStore store, ClusterMeasureSource measures, EvaluationScheduler scheduler, ILocalSiloDetails silo, ILogger<PartitionGrain> logger)
     : Grain, IPartitionGrain
 {
     // Small batches keep facts and results short-lived (see the CLI's batch evaluation).
@@ -54,6 +56,7 @@ internal sealed class PartitionGrain(IResourceStore store, ClusterMeasureSource 
         }
 
         DeactivateOnIdle();
+        LogEvaluated(logger, partition);
         return new PartitionResult(partition, silo.SiloAddress.ToParsableString(), [.. summaries.Select(MeasurePartial.From)]);
     }
 
@@ -72,4 +75,7 @@ internal sealed class PartitionGrain(IResourceStore store, ClusterMeasureSource 
 
             return batch.Count;
         }, cancellationToken);
+
+    [LoggerMessage(Level = LogLevel.Information, Message = "Partition {Partition} evaluated on this node")]
+    private static partial void LogEvaluated(ILogger logger, int partition);
 }
