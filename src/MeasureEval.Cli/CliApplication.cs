@@ -2,6 +2,7 @@ using System.CommandLine;
 using MeasureEval.Cli.Evaluate;
 using MeasureEval.Cli.Generate;
 using MeasureEval.Cli.Load;
+using MeasureEval.Cli.Token;
 
 namespace MeasureEval.Cli;
 
@@ -14,6 +15,7 @@ public static class CliApplication
         root.Subcommands.Add(GenerateCommand.Create());
         root.Subcommands.Add(LoadCommand.Create(time));
         root.Subcommands.Add(EvaluateCommand.Create(time));
+        root.Subcommands.Add(TokenCommand.Create(time));
         return root;
     }
 }

@@ -19,8 +19,13 @@ public sealed class PostgresStoreApiTests(PostgresServer server) : IClassFixture
         {
             builder.UseSetting("Storage:Provider", "Postgres");
             builder.UseSetting("Storage:ConnectionString", connectionString);
+            foreach (var (key, value) in TestTokens.Settings)
+            {
+                builder.UseSetting(key, value);
+            }
         });
         var client = factory.CreateClient();
+        client.DefaultRequestHeaders.Authorization = TestTokens.Header("admin");
 
         var transaction = await client.PostAsync("/", Json(Input("Bundles/linked-transaction.json")));
         var ingest = await client.PostAsync("/$ingest", Json(Input("Ingest/mixed.ndjson"), "application/fhir+ndjson"));

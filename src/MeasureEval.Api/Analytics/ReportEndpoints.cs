@@ -9,6 +9,7 @@ using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Http;
 using Microsoft.AspNetCore.Http.HttpResults;
 using Microsoft.AspNetCore.Routing;
+using MeasureEval.Api.Security;
 
 namespace MeasureEval.Api.Analytics;
 
@@ -26,8 +27,8 @@ public static class ReportEndpoints
     {
         ArgumentNullException.ThrowIfNull(app);
         var group = app.MapGroup("/reports").WithTags("Reports");
-        group.MapGet("/", GetIndexAsync).WithName("GetReportIndex").WithSummary("Every measure's rate with its 95 % interval over one period (HTML or JSON).");
-        group.MapGet("/measures/{id}", GetMeasureReportAsync).WithName("GetMeasureReport")
+        group.MapGet("/", GetIndexAsync).WithName("GetReportIndex").RequireAuthorization(AccessPolicies.PatientData).WithSummary("Every measure's rate with its 95 % interval over one period (HTML or JSON).");
+        group.MapGet("/measures/{id}", GetMeasureReportAsync).WithName("GetMeasureReport").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("One measure: rate and strata with intervals, panel funnel and gap-to-target, trend (HTML, JSON or CSV).");
         return app;
     }

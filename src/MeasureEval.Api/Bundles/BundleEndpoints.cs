@@ -7,6 +7,7 @@ using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Http;
 using Microsoft.AspNetCore.Routing;
 using Microsoft.Extensions.Options;
+using MeasureEval.Api.Security;
 
 namespace MeasureEval.Api.Bundles;
 
@@ -17,7 +18,7 @@ public static class BundleEndpoints
     {
         app.MapPost("/", ProcessBundleAsync)
             .WithTags("Transactions")
-            .WithName("transaction")
+            .WithName("transaction").RequireAuthorization(AccessPolicies.Write)
             .WithSummary("Process a transaction (all or nothing) or batch (independent entries) Bundle")
             .WithFhir(FhirEndpointExtensions.ResourceMediaTypes, [200], 400, 406, 409, 412, 413, 415, 422)
             .WithFhirSystemInteraction(CapabilityStatement.SystemRestfulInteraction.Transaction)

@@ -2,6 +2,7 @@ using MeasureEval.Api.Fhir;
 using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Http;
 using Microsoft.AspNetCore.Routing;
+using MeasureEval.Api.Security;
 
 namespace MeasureEval.Api.Capabilities;
 
@@ -11,7 +12,7 @@ public static class CapabilityEndpoints
     {
         app.MapGet("/metadata", GetCapabilityStatement)
             .WithTags("Capabilities")
-            .WithName("capabilities")
+            .WithName("capabilities").AllowAnonymous()
             .WithSummary("The CapabilityStatement: what this server implements")
             .WithFhir([], [200], 406);
         return app;

@@ -10,6 +10,7 @@ using Microsoft.AspNetCore.Http;
 using Microsoft.AspNetCore.Http.HttpResults;
 using Microsoft.AspNetCore.Routing;
 using Microsoft.Extensions.Options;
+using MeasureEval.Api.Security;
 
 namespace MeasureEval.Api.CareGaps;
 
@@ -24,14 +25,14 @@ public static class CareGapEndpoints
     {
         var group = app.MapGroup("").WithTags("Care gaps");
         var parameters = "periodStart, periodEnd, subject Patient/x or Group/x, practitioner Practitioner/x (panel), organization Organization/x (payer), status (repeated; default open-gap), measureId (repeated; default all), horizon (date; default the end of the next period)";
-        group.MapGet("/Measure/$care-gaps", GetCareGapsAsync).WithName("care-gaps-get")
+        group.MapGet("/Measure/$care-gaps", GetCareGapsAsync).WithName("care-gaps-get").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Gaps in care per patient: a Parameters with one Bundle (MeasureReports, DetectedIssues) per patient")
             .WithFhir([], [200], 400, 404, 406)
             .WithFhirOperation("care-gaps", CareGapsDefinition, "Measure", parameters);
-        group.MapPost("/Measure/$care-gaps", PostCareGapsAsync).WithName("care-gaps-post")
+        group.MapPost("/Measure/$care-gaps", PostCareGapsAsync).WithName("care-gaps-post").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Gaps in care with a Parameters body")
             .WithFhir(FhirEndpointExtensions.ResourceMediaTypes, [200], 400, 404, 406, 413, 415);
-        group.MapGet("/Measure/$care-gaps-export", ExportAsync).WithName("care-gaps-export")
+        group.MapGet("/Measure/$care-gaps-export", ExportAsync).WithName("care-gaps-export").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary($"One row per patient and measure, streamed as CSV or NDJSON (_format=csv|ndjson); {parameters}");
         return app;
     }

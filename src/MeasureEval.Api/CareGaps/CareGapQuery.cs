@@ -1,5 +1,6 @@
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Errors;
+using MeasureEval.Api.Fhir;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Gaps;
 using Microsoft.AspNetCore.Http;
@@ -53,28 +54,7 @@ public sealed record CareGapQuery(MeasurementPeriod Period, IReadOnlyList<string
 
     public static bool TryRead(Parameters body, TimeProvider time, List<FhirIssue> issues, out CareGapQuery? result)
     {
-        ArgumentNullException.ThrowIfNull(body);
-        var values = new List<(string Name, string Value, string Location)>();
-        for (var i = 0; i < body.Parameter.Count; i++)
-        {
-            var parameter = body.Parameter[i];
-            var text = parameter.Value switch
-            {
-                ResourceReference reference => reference.Reference,
-                Date date => date.Value,
-                FhirDateTime dateTime => dateTime.Value,
-                PrimitiveType primitive => primitive.JsonValue?.ToString(),
-                _ => null,
-            };
-            if (text is null)
-            {
-                issues.Add(new FhirIssue(CareGapErrors.InvalidParameter, $"parameter '{parameter.Name}' needs a value[x] (date, string, code or Reference)", $"Parameters.parameter[{i}]"));
-                continue;
-            }
-
-            values.Add((parameter.Name ?? "", text, $"Parameters.parameter[{i}]"));
-        }
-
+        var values = OperationParameters.Read(body, CareGapErrors.InvalidParameter, issues).Select(p => (p.Name, p.Value, p.Location)).ToList();
         return TryRead(values, time, export: false, issues, out result);
     }
 

@@ -67,6 +67,10 @@ public static class ErrorCatalogue
     public static readonly ErrorCode IngestSummary = new("MEV-INGEST-002", Information, OperationOutcome.IssueType.Informational, 200, "Ingest summary");
     public static readonly ErrorCode IngestAborted = new("MEV-INGEST-003", Information, OperationOutcome.IssueType.Informational, 200, "Resources stored before the body became unreadable");
 
+    // Authentication and authorization.
+    public static readonly ErrorCode Unauthenticated = new("MEV-AUTH-001", Error, OperationOutcome.IssueType.Login, 401, "A valid bearer token is required");
+    public static readonly ErrorCode Forbidden = new("MEV-AUTH-002", Error, OperationOutcome.IssueType.Forbidden, 403, "The token's role may not use this endpoint");
+
     // The service itself.
     public static readonly ErrorCode Unexpected = new("MEV-SRV-001", OperationOutcome.IssueSeverity.Fatal, OperationOutcome.IssueType.Exception, 500, "Unexpected server error");
 
@@ -78,6 +82,7 @@ public static class ErrorCatalogue
         WrongBundleType, EntryRequestMissing, DuplicateFullUrl, UnresolvedReference, InvalidEntryUrl, UnsupportedEntryMethod, EntryResourceMissing, BatchCrossReference, DuplicateTarget,
         UnknownSearchParameter, InvalidSearchValue, UnsupportedSearchForm,
         IngestIdMissing, IngestSummary, IngestAborted,
+        Unauthenticated, Forbidden,
         Unexpected,
     ];
 

@@ -15,11 +15,13 @@ public static class StatusCodeOutcomes
             {
                 StatusCodes.Status404NotFound => ErrorCatalogue.NoSuchEndpoint,
                 StatusCodes.Status405MethodNotAllowed => ErrorCatalogue.MethodNotAllowed,
+                StatusCodes.Status401Unauthorized => ErrorCatalogue.Unauthenticated,
+                StatusCodes.Status403Forbidden => ErrorCatalogue.Forbidden,
                 _ => null,
             };
             if (code is not null)
             {
-                var issue = new FhirIssue(code, $"{http.Request.Method} is not implemented at this path.");
+                var issue = new FhirIssue(code, code.HttpStatus is 404 or 405 ? $"{http.Request.Method} is not implemented at this path." : code.Title);
                 await FhirResult.Outcome(code.HttpStatus, [issue]).ExecuteAsync(http);
             }
         });

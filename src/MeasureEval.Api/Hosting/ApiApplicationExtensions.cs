@@ -7,8 +7,10 @@ using MeasureEval.Api.Logging;
 using MeasureEval.Api.OpenApi;
 using MeasureEval.Api.Resources;
 using MeasureEval.Api.Search;
+using MeasureEval.Api.Security;
 using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Routing;
+using Microsoft.Extensions.Hosting;
 
 namespace MeasureEval.Api.Hosting;
 
@@ -19,12 +21,20 @@ public static class ApiApplicationExtensions
     {
         ArgumentNullException.ThrowIfNull(app);
         app.UseMiddleware<RequestIdMiddleware>();
+        app.UseMiddleware<SecurityHeadersMiddleware>();
+        if (!app.Environment.IsDevelopment())
+        {
+            app.UseHttpsRedirection();
+        }
+
         app.UseMeasureEvalRequestLogging();
         app.UseExceptionHandler();
         app.UseFhirStatusCodeOutcomes();
         app.UseMeasureEvalOpenApi();
         // Routing after the docs middleware, so requests it serves are not matched (and logged) as FHIR routes.
         app.UseRouting();
+        app.UseAuthentication();
+        app.UseAuthorization();
         return app;
     }
 

@@ -102,6 +102,12 @@ public static class BundleIngestReader
                 ex.LineNumber + 1,
                 ex.BytePositionInLine + 1));
         }
+        catch (InvalidOperationException)
+        {
+            // System.Text.Json throws this, not JsonException, for a string with an unpaired surrogate escape or invalid UTF-8.
+            var where = state.Stage == Stage.Entries ? $"Bundle.entry[{state.EntryIndex}]" : "Bundle";
+            state.Failure = new IngestFailure(new FhirIssue(ErrorCatalogue.MalformedJson, "Malformed JSON; reading stopped: a string is not valid Unicode (invalid UTF-8 or an unpaired surrogate escape).", where));
+        }
 
         state.Reader = reader.CurrentState;
         return reader.BytesConsumed;

@@ -6,6 +6,7 @@ using Microsoft.AspNetCore.Http;
 using Microsoft.AspNetCore.Http.Features;
 using Microsoft.AspNetCore.Routing;
 using Microsoft.Extensions.Options;
+using MeasureEval.Api.Security;
 
 namespace MeasureEval.Api.Ingest;
 
@@ -21,7 +22,7 @@ public static class IngestEndpoints
     {
         app.MapPost("/$ingest", IngestAsync)
             .WithTags("Ingest")
-            .WithName("ingest")
+            .WithName("ingest").RequireAuthorization(AccessPolicies.Write)
             .WithSummary("Bulk upsert of a collection/searchset Bundle or NDJSON, streamed; refused lines reported with positions")
             .WithFhir([FhirFormat.FhirJson, FhirFormat.Json, FhirFormat.FhirNdjson, FhirFormat.Ndjson], [200], 400, 406, 413, 415)
             .WithFhirOperation("ingest", OperationDefinition, null,

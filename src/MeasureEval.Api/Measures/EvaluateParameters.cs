@@ -1,6 +1,7 @@
 using System.Globalization;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Errors;
+using MeasureEval.Api.Fhir;
 using MeasureEval.Engine;
 using Microsoft.AspNetCore.Http;
 
@@ -35,27 +36,7 @@ public sealed record EvaluateParameters(
 
     public static bool TryRead(Parameters body, TimeProvider time, List<FhirIssue> issues, out EvaluateParameters? parameters)
     {
-        var values = new List<(string Name, string Value)>();
-        for (var i = 0; i < body.Parameter.Count; i++)
-        {
-            var parameter = body.Parameter[i];
-            var text = parameter.Value switch
-            {
-                ResourceReference reference => reference.Reference,
-                Date date => date.Value,
-                FhirDateTime dateTime => dateTime.Value,
-                PrimitiveType primitive => primitive.JsonValue?.ToString(),
-                _ => null,
-            };
-            if (text is null)
-            {
-                issues.Add(new FhirIssue(MeasureErrors.InvalidParameter, $"parameter '{parameter.Name}' needs a value[x] (date, string, code or Reference)", $"Parameters.parameter[{i}]"));
-                continue;
-            }
-
-            values.Add((parameter.Name ?? "", text));
-        }
-
+        var values = OperationParameters.Read(body, MeasureErrors.InvalidParameter, issues).Select(p => (p.Name, p.Value)).ToList();
         return TryRead(values, time, issues, out parameters);
     }
 

@@ -13,6 +13,7 @@ using Microsoft.AspNetCore.Http;
 using Microsoft.AspNetCore.Routing;
 using Microsoft.Extensions.Options;
 using Interaction = Hl7.Fhir.Model.CapabilityStatement.TypeRestfulInteraction;
+using MeasureEval.Api.Security;
 
 namespace MeasureEval.Api.Measures;
 
@@ -26,25 +27,25 @@ public static class MeasureEndpoints
     {
         var group = app.MapGroup("").WithTags("Measures");
         var fhirBody = FhirEndpointExtensions.ResourceMediaTypes;
-        group.MapGet("/Measure", ListMeasuresAsync).WithName("measure-list").WithSummary("Every loaded measure as a FHIR Measure")
+        group.MapGet("/Measure", ListMeasuresAsync).WithName("measure-list").RequireAuthorization(AccessPolicies.Definitions).WithSummary("Every loaded measure as a FHIR Measure")
             .WithFhir([], [200], 406);
-        group.MapGet("/Measure/{id}", ReadMeasureAsync).WithName("measure-read").WithSummary("One measure as a FHIR Measure whose criteria name the logic")
+        group.MapGet("/Measure/{id}", ReadMeasureAsync).WithName("measure-read").RequireAuthorization(AccessPolicies.Definitions).WithSummary("One measure as a FHIR Measure whose criteria name the logic")
             .WithFhir([], [200], 404, 406);
-        group.MapPut("/Measure/{id}", PutMeasureAsync).WithName("measure-put")
+        group.MapPut("/Measure/{id}", PutMeasureAsync).WithName("measure-put").RequireAuthorization(AccessPolicies.Manage)
             .WithSummary("Load or replace a measure written in the definition format (application/vnd.measureeval+json); kept across restarts")
             .WithFhir(DefinitionBody, [200, 201], 400, 406, 413, 415);
-        group.MapGet("/Library/{id}", ReadLibraryAsync).WithName("library-read").WithSummary("The definition file of a measure or shared library, base64 in Library.content")
+        group.MapGet("/Library/{id}", ReadLibraryAsync).WithName("library-read").RequireAuthorization(AccessPolicies.Definitions).WithSummary("The definition file of a measure or shared library, base64 in Library.content")
             .WithFhir([], [200], 404, 406);
-        group.MapPut("/ValueSet/{id}", PutValueSetAsync).WithName("valueset-put").WithSummary("Load or replace a value set (FHIR R4 ValueSet) without a rebuild; kept across restarts")
+        group.MapPut("/ValueSet/{id}", PutValueSetAsync).WithName("valueset-put").RequireAuthorization(AccessPolicies.Manage).WithSummary("Load or replace a value set (FHIR R4 ValueSet) without a rebuild; kept across restarts")
             .WithFhir(fhirBody, [200, 201], 400, 406, 413, 415);
-        group.MapGet("/Measure/{id}/$evaluate-measure", EvaluateGetAsync).WithName("evaluate-measure-get")
+        group.MapGet("/Measure/{id}/$evaluate-measure", EvaluateGetAsync).WithName("evaluate-measure-get").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Evaluate one measure: periodStart, periodEnd, subject (Patient/x or Group/x), practitioner, reportType")
             .WithFhir([], [200], 400, 404, 406)
             .WithFhirOperation("evaluate-measure", EvaluateDefinition, "Measure", "periodStart, periodEnd (dates, default the current calendar year), subject Patient/x or Group/x, practitioner (Patient.generalPractitioner), reportType subject | subject-list | population");
-        group.MapPost("/Measure/{id}/$evaluate-measure", EvaluatePostAsync).WithName("evaluate-measure-post")
+        group.MapPost("/Measure/{id}/$evaluate-measure", EvaluatePostAsync).WithName("evaluate-measure-post").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Evaluate one measure with a Parameters body")
             .WithFhir(fhirBody, [200], 400, 404, 406, 413, 415);
-        group.MapPost("/Measure/$evaluate-measure", EvaluateManyAsync).WithName("evaluate-measures")
+        group.MapPost("/Measure/$evaluate-measure", EvaluateManyAsync).WithName("evaluate-measures").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Evaluate several measures (Parameters, measureId repeated) in one pass over the patients; a Bundle of MeasureReports")
             .WithFhir(fhirBody, [200], 400, 404, 406, 413, 415)
             .WithFhirOperation("evaluate-measure", EvaluateDefinition, "Measure", "type level: measureId repeated; the other parameters as on an instance; answers a Bundle of MeasureReports, one per measure");

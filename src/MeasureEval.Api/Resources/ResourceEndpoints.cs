@@ -12,6 +12,7 @@ using Microsoft.AspNetCore.Routing;
 using Microsoft.AspNetCore.WebUtilities;
 using Microsoft.Extensions.Options;
 using Interaction = Hl7.Fhir.Model.CapabilityStatement.TypeRestfulInteraction;
+using MeasureEval.Api.Security;
 
 namespace MeasureEval.Api.Resources;
 
@@ -22,17 +23,17 @@ public static class ResourceEndpoints
     {
         var group = app.MapGroup("").WithTags("Resources");
         var body = FhirEndpointExtensions.ResourceMediaTypes;
-        group.MapGet("/{type}/{id}", ReadAsync).WithName("read").WithSummary("Read the current version")
+        group.MapGet("/{type}/{id}", ReadAsync).WithName("read").RequireAuthorization(AccessPolicies.PatientData).WithSummary("Read the current version")
             .WithFhir([], [200], 404, 406, 410).WithFhirInteraction(Interaction.Read);
-        group.MapGet("/{type}/{id}/_history/{vid}", VersionReadAsync).WithName("vread").WithSummary("Read one version")
+        group.MapGet("/{type}/{id}/_history/{vid}", VersionReadAsync).WithName("vread").RequireAuthorization(AccessPolicies.PatientData).WithSummary("Read one version")
             .WithFhir([], [200], 404, 406, 410).WithFhirInteraction(Interaction.Vread);
-        group.MapGet("/{type}/{id}/_history", HistoryAsync).WithName("history-instance").WithSummary("Every version, newest first")
+        group.MapGet("/{type}/{id}/_history", HistoryAsync).WithName("history-instance").RequireAuthorization(AccessPolicies.PatientData).WithSummary("Every version, newest first")
             .WithFhir([], [200], 404, 406).WithFhirInteraction(Interaction.HistoryInstance);
-        group.MapPut("/{type}/{id}", UpdateAsync).WithName("update").WithSummary("Update, or create under this id; If-Match for optimistic locking")
+        group.MapPut("/{type}/{id}", UpdateAsync).WithName("update").RequireAuthorization(AccessPolicies.Write).WithSummary("Update, or create under this id; If-Match for optimistic locking")
             .WithFhir(body, [200, 201], 400, 404, 406, 412, 413, 415).WithFhirInteraction(Interaction.Update);
-        group.MapDelete("/{type}/{id}", DeleteAsync).WithName("delete").WithSummary("Delete (a new version marks it deleted); If-Match honoured")
+        group.MapDelete("/{type}/{id}", DeleteAsync).WithName("delete").RequireAuthorization(AccessPolicies.Write).WithSummary("Delete (a new version marks it deleted); If-Match honoured")
             .WithFhir([], [204], 400, 404, 406, 412).WithFhirInteraction(Interaction.Delete);
-        group.MapPost("/{type}", CreateAsync).WithName("create").WithSummary("Create under a server id; If-None-Exist for conditional create")
+        group.MapPost("/{type}", CreateAsync).WithName("create").RequireAuthorization(AccessPolicies.Write).WithSummary("Create under a server id; If-None-Exist for conditional create")
             .WithFhir(body, [200, 201], 400, 404, 406, 412, 413, 415).WithFhirInteraction(Interaction.Create);
         return app;
     }

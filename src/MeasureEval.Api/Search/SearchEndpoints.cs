@@ -5,6 +5,7 @@ using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Http;
 using Microsoft.AspNetCore.Routing;
 using Microsoft.Extensions.Primitives;
+using MeasureEval.Api.Security;
 
 namespace MeasureEval.Api.Search;
 
@@ -15,12 +16,12 @@ public static class SearchEndpoints
     {
         var group = app.MapGroup("").WithTags("Search");
         group.MapGet("/{type}", SearchAsync)
-            .WithName("search-type")
+            .WithName("search-type").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Search resources of a type")
             .WithFhir([], [200], 400, 404, 406)
             .WithFhirInteraction(Hl7.Fhir.Model.CapabilityStatement.TypeRestfulInteraction.SearchType);
         group.MapPost("/{type}/_search", SearchPostAsync)
-            .WithName("search-type-post")
+            .WithName("search-type-post").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Search resources of a type, parameters in a form body")
             .WithFhir([FhirFormat.FormUrlEncoded], [200], 400, 404, 406, 415);
         return app;

@@ -9,8 +9,11 @@ namespace MeasureEval.Cli.Batch;
 /// </summary>
 internal static class StoreLoader
 {
-    /// <summary>Resources written per committed session (bounds the open transaction).</summary>
-    private const int ResourcesPerSession = 20000;
+    /// <summary>
+    /// Resources written per committed session: large, so that a session spans several type files and each patient's
+    /// index entry is rewritten fewer times (the session bounds the entries it holds in memory itself).
+    /// </summary>
+    private const int ResourcesPerSession = 250000;
 
     public static async Task<IReadOnlyList<InputIssue>> CheckAsync(string directory, CancellationToken cancellationToken)
     {

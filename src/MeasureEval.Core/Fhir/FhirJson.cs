@@ -78,6 +78,13 @@ public static class FhirJson
             ];
             return false;
         }
+        catch (InvalidOperationException)
+        {
+            // System.Text.Json throws this, not JsonException, when a string holds an unpaired surrogate escape or invalid UTF-8.
+            resource = null;
+            issues = [new FhirParseIssue(FhirParseIssueKind.Syntax, "JSON", "", null, null, "A JSON string is not valid Unicode (invalid UTF-8 or an unpaired surrogate escape).")];
+            return false;
+        }
     }
 
     private static List<FhirParseIssue> Convert(IEnumerable<CodedException>? raw)

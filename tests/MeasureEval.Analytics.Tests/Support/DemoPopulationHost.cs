@@ -2,6 +2,7 @@ using System.Net;
 using System.Net.Http.Headers;
 using Microsoft.AspNetCore.Hosting;
 using Microsoft.AspNetCore.Mvc.Testing;
+using MeasureEval.Testing;
 using Microsoft.Data.Sqlite;
 
 namespace MeasureEval.Analytics.Tests.Support;
@@ -54,6 +55,17 @@ public sealed class DemoPopulationHost : WebApplicationFactory<Program>, IAsyncL
         builder.UseSetting("Storage:Provider", "Sqlite");
         builder.UseSetting("Storage:ConnectionString", $"Data Source={Path.Combine(_directory, "store.db")}");
         builder.UseSetting("Measures:Directory", Path.Combine(RepositoryRoot, "measures"));
+        foreach (var (key, value) in TestTokens.Settings)
+        {
+            builder.UseSetting(key, value);
+        }
+    }
+
+    /// <summary>Clients act as an administrator (the demo data is loaded through them).</summary>
+    protected override void ConfigureClient(HttpClient client)
+    {
+        base.ConfigureClient(client);
+        client.DefaultRequestHeaders.Authorization = TestTokens.Header("admin");
     }
 
     protected override void Dispose(bool disposing)

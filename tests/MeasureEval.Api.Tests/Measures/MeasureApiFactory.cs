@@ -1,4 +1,5 @@
 using Microsoft.AspNetCore.Hosting;
+using MeasureEval.Testing;
 using Microsoft.AspNetCore.Mvc.Testing;
 
 namespace MeasureEval.Api.Tests.Measures;
@@ -10,6 +11,19 @@ public sealed class MeasureApiFactory(string databaseFile) : WebApplicationFacto
 
     public static string NewDatabaseFile() => Path.Combine(Path.GetTempPath(), $"measureeval-measures-{Guid.NewGuid():N}.db");
 
-    protected override void ConfigureWebHost(IWebHostBuilder builder) =>
+    protected override void ConfigureWebHost(IWebHostBuilder builder)
+    {
         builder.UseSetting("Storage:Provider", "Sqlite").UseSetting("Storage:ConnectionString", $"Data Source={DatabaseFile}");
+        foreach (var (key, value) in TestTokens.Settings)
+        {
+            builder.UseSetting(key, value);
+        }
+    }
+
+    /// <summary>Clients act as an administrator (measures and value sets are loaded here).</summary>
+    protected override void ConfigureClient(HttpClient client)
+    {
+        base.ConfigureClient(client);
+        client.DefaultRequestHeaders.Authorization = TestTokens.Header("admin");
+    }
 }

@@ -1,5 +1,6 @@
 using Microsoft.AspNetCore.Hosting;
 using Microsoft.AspNetCore.Mvc.Testing;
+using MeasureEval.Testing;
 using Microsoft.Data.Sqlite;
 
 namespace MeasureEval.Api.Tests.Support;
@@ -19,10 +20,22 @@ public class ApiFactory : WebApplicationFactory<Program>
         ArgumentNullException.ThrowIfNull(builder);
         builder.UseSetting("Storage:Provider", "Sqlite");
         builder.UseSetting("Storage:ConnectionString", $"Data Source={DatabasePath}");
+        foreach (var (key, value) in TestTokens.Settings)
+        {
+            builder.UseSetting(key, value);
+        }
+
         foreach (var (key, value) in Settings)
         {
             builder.UseSetting(key, value);
         }
+    }
+
+    /// <summary>Clients act as an administrator unless a test sets another token (or none).</summary>
+    protected override void ConfigureClient(HttpClient client)
+    {
+        base.ConfigureClient(client);
+        client.DefaultRequestHeaders.Authorization = TestTokens.Header("admin");
     }
 
     protected override void Dispose(bool disposing)

@@ -84,7 +84,8 @@ public sealed class ClusterEvaluationTests : IDisposable
 
     private Process StartNode(int port, string store, (string ClusterId, int RedisPort)? cluster)
     {
-        var environment = new Dictionary<string, string> { ["Storage__ConnectionString"] = store };
+        // Nodes bind loopback only, where the service allows auth to be switched off; the test is about evaluation, not tokens.
+        var environment = new Dictionary<string, string> { ["Storage__ConnectionString"] = store, ["Auth__Disabled"] = "true" };
         if (cluster is { } c)
         {
             environment["Cluster__Enabled"] = "true";

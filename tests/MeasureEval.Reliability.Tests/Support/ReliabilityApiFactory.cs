@@ -1,0 +1,48 @@
+using Microsoft.AspNetCore.Hosting;
+using Microsoft.AspNetCore.Mvc.Testing;
+using MeasureEval.Testing;
+using Microsoft.Data.Sqlite;
+
+namespace MeasureEval.Reliability.Tests.Support;
+
+/// <summary>The service in-process over a temporary SQLite file; <see cref="Client"/> is the one place a client gets its credentials.</summary>
+public sealed class ReliabilityApiFactory : WebApplicationFactory<Program>
+{
+    private readonly string _directory = Directory.CreateTempSubdirectory("measureeval-reliability-").FullName;
+
+    public string DatabasePath => Path.Combine(_directory, "store.db");
+
+    public HttpClient Client()
+    {
+        var client = CreateClient();
+        // Admin: these tests ingest and evaluate with the same client.
+        client.DefaultRequestHeaders.Authorization = TestTokens.Header("admin");
+        return client;
+    }
+
+    protected override void ConfigureWebHost(IWebHostBuilder builder)
+    {
+        ArgumentNullException.ThrowIfNull(builder);
+        builder.UseSetting("Storage:Provider", "Sqlite");
+        builder.UseSetting("Storage:ConnectionString", $"Data Source={DatabasePath}");
+        builder.UseSetting("Measures:Directory", Path.Combine(RepositoryRoot.Path, "measures"));
+        foreach (var (key, value) in TestTokens.Settings)
+        {
+            builder.UseSetting(key, value);
+        }
+    }
+
+    protected override void Dispose(bool disposing)
+    {
+        base.Dispose(disposing);
+        SqliteConnection.ClearAllPools();
+        try
+        {
+            Directory.Delete(_directory, recursive: true);
+        }
+        catch (IOException)
+        {
+            // A file still open is left to the OS temp cleanup; not a test failure.
+        }
+    }
+}
