@@ -4,6 +4,7 @@ using MeasureEval.Api.Demo;
 using MeasureEval.Api.Hosting;
 using MeasureEval.Api.Logging;
 using MeasureEval.Api.Measures;
+using MeasureEval.Cluster.Hosting;
 using MeasureEval.Api.Security;
 using MeasureEval.Storage;
 
@@ -15,6 +16,7 @@ builder.Services.AddMeasureEvalSecurity();
 builder.Services.AddMeasureEvalMeasures();
 builder.Services.AddMeasureEvalAnalytics();
 builder.Services.AddMeasureEvalCareGaps();
+builder.AddMeasureEvalCluster((services, cancellationToken) => services.GetRequiredService<MeasureCatalog>().GetAsync(cancellationToken));
 builder.Services.AddMeasureEvalDemo();
 
 var app = builder.Build();

@@ -1,5 +1,6 @@
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Errors;
+using MeasureEval.Cluster.Hosting;
 using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Index;
 using MeasureEval.Core.Storage;
@@ -9,7 +10,8 @@ using MeasureEval.Engine.Reports;
 namespace MeasureEval.Api.Measures;
 
 /// <summary>Runs $evaluate-measure: picks the patients (one, a Group's members, everyone), streams them once for all measures.</summary>
-public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time)
+/// <remarks>In cluster mode (<see cref="ClusterEvaluation"/> registered) a population is evaluated partitioned over the nodes; the reports are the same.</remarks>
+public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time, ClusterEvaluation? cluster = null)
 {
     public async Task<(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error)> EvaluateAsync(
         MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, CancellationToken cancellationToken)
@@ -44,9 +46,12 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
             return ([.. measures.Select((m, i) => builder.Individual(m, parameters.Period, results[i]))], null);
         }
 
-        var patients = Filter(store.StreamPatientFactsAsync(patientIds, cancellationToken), parameters.PractitionerReference, cancellationToken);
-        var summaries = await new PopulationEvaluator(evaluator).SummarizeAsync(
-            patients, measures, parameters.Period, keepSubjects: parameters.ReportKind == ReportKind.SubjectList, cancellationToken);
+        var keepSubjects = parameters.ReportKind == ReportKind.SubjectList;
+        var summaries = cluster is not null
+            ? (await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects)).Summaries
+            : await new PopulationEvaluator(evaluator).SummarizeAsync(
+                Filter(store.StreamPatientFactsAsync(patientIds, cancellationToken), parameters.PractitionerReference, cancellationToken),
+                measures, parameters.Period, keepSubjects, cancellationToken);
         return ([.. summaries.Select(s => parameters.ReportKind == ReportKind.SubjectList ? builder.SubjectList(s) : builder.Summary(s))], null);
     }
 

@@ -35,6 +35,19 @@ public sealed class PopulationTally
             }
         }
     }
+
+    /// <summary>The counts in <see cref="PopulationKind"/> order, to ship a partition's tally to another node.</summary>
+    public int[] ToCounts() => [.. _counts];
+
+    /// <summary>Adds counts of other patients (in <see cref="PopulationKind"/> order): partial tallies merge exactly.</summary>
+    public void AddCounts(IReadOnlyList<int> counts)
+    {
+        ArgumentNullException.ThrowIfNull(counts);
+        for (var i = 0; i < _counts.Length; i++)
+        {
+            _counts[i] += counts[i];
+        }
+    }
 }
 
 /// <summary>
@@ -116,6 +129,51 @@ public sealed class PopulationSummary
                 {
                     _subjects[population].Add(result.PatientId);
                 }
+            }
+        }
+    }
+
+    /// <summary>
+    /// Adds the aggregate of patients evaluated elsewhere (a cluster partition's): counts, strata, findings and subjects
+    /// add up, so merging the partitions of a population gives the summary of the whole.
+    /// </summary>
+    public void AddPartial(
+        int patientsEvaluated, IReadOnlyList<int> counts, IReadOnlyDictionary<string, Dictionary<string, int[]>> strata,
+        IReadOnlyDictionary<string, int> findings, IReadOnlyDictionary<PopulationKind, List<string>>? subjects)
+    {
+        ArgumentNullException.ThrowIfNull(strata);
+        ArgumentNullException.ThrowIfNull(findings);
+        PatientsEvaluated += patientsEvaluated;
+        Counts.AddCounts(counts);
+        foreach (var (stratifier, codes) in strata)
+        {
+            if (!_strata.TryGetValue(stratifier, out var mine))
+            {
+                continue;
+            }
+
+            foreach (var (code, stratumCounts) in codes)
+            {
+                if (!mine.TryGetValue(code, out var tally))
+                {
+                    tally = new PopulationTally();
+                    mine[code] = tally;
+                }
+
+                tally.AddCounts(stratumCounts);
+            }
+        }
+
+        foreach (var (code, count) in findings)
+        {
+            _findings[code] = _findings.GetValueOrDefault(code) + count;
+        }
+
+        if (_subjects is not null && subjects is not null)
+        {
+            foreach (var (population, ids) in subjects)
+            {
+                _subjects[population].AddRange(ids);
             }
         }
     }
