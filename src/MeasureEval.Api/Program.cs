@@ -21,10 +21,11 @@ builder.Services.AddMeasureEvalDemo();
 
 var app = builder.Build();
 app.UseMeasureEvalApi();
-app.MapMeasureEndpoints();
-app.MapMeasureEvalApi();
-app.MapReportEndpoints();
-app.MapCareGapEndpoints();
+var routes = app.MapMeasureEvalRoutes();
+routes.MapMeasureEndpoints();
+routes.MapMeasureEvalApi();
+routes.MapReportEndpoints();
+routes.MapCareGapEndpoints();
 app.Run();
 
 /// <summary>Entry point; public so that tests can host it with WebApplicationFactory.</summary>

@@ -1,3 +1,4 @@
+using MeasureEval.Core.Audit;
 using MeasureEval.Core.Storage;
 using MeasureEval.Storage.Postgres;
 using MeasureEval.Storage.Sqlite;
@@ -23,6 +24,8 @@ public static class StorageServiceCollectionExtensions
         services.TryAddEnumerable(ServiceDescriptor.Singleton<IValidateOptions<StorageOptions>, StorageOptionsValidator>());
         services.TryAddSingleton(TimeProvider.System);
         services.TryAddSingleton<IResourceStore>(CreateStore);
+        // Both stores keep the audit trail in their own tables, on the same connections as the resources.
+        services.TryAddSingleton<IAuditStore>(s => (IAuditStore)s.GetRequiredService<IResourceStore>());
         services.AddHostedService<StorageInitializer>();
         return services;
     }

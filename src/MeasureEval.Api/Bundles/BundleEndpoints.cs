@@ -42,6 +42,14 @@ public static class BundleEndpoints
             return FhirResult.Outcome(new FhirIssue(ErrorCatalogue.ResourceTypeMismatch, $"POST / takes a Bundle, not a {parsed.Resource!.TypeName}.", parsed.Resource.TypeName));
         }
 
+        if (bundle.Entry.Count > options.Value.MaxBundleEntries)
+        {
+            return FhirResult.Outcome(new FhirIssue(
+                ErrorCatalogue.TooManyEntries,
+                $"The Bundle has {bundle.Entry.Count} entries; at most {options.Value.MaxBundleEntries} are accepted in one request (Ingest:MaxBundleEntries). Split it, or send the resources to $ingest.",
+                "Bundle.entry"));
+        }
+
         var withResources = FhirPrefer.Of(request).WantsRepresentation(byDefault: false);
         var (response, issues) = await processor.ProcessAsync(bundle, FhirBaseUrl.Of(request), withResources, cancellationToken);
         return response is null ? FhirResult.Outcome(issues) : FhirResult.Of(StatusCodes.Status200OK, response);

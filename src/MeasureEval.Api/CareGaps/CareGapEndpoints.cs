@@ -1,4 +1,5 @@
 using Hl7.Fhir.Model;
+using MeasureEval.Api.Audit;
 using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
@@ -85,6 +86,8 @@ public static class CareGapEndpoints
         }
 
         var csv = query!.Format == ExportFormat.Csv;
+        var trail = AuditTrail.Of(request.HttpContext);
+        trail?.Streamed = true;
         return TypedResults.Stream(
             async body =>
             {
@@ -92,6 +95,11 @@ public static class CareGapEndpoints
                 await writer.WriteHeaderAsync(cancellationToken);
                 await foreach (var patient in service.StreamAsync(selection, query, cancellationToken))
                 {
+                    if (patient.Gaps.Count > 0)
+                    {
+                        trail?.AddPatient(patient.Facts.PatientId);
+                    }
+
                     foreach (var (_, gap) in patient.Gaps)
                     {
                         await writer.WriteAsync(gap, cancellationToken);

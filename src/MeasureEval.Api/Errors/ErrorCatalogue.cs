@@ -71,6 +71,15 @@ public static class ErrorCatalogue
     public static readonly ErrorCode Unauthenticated = new("MEV-AUTH-001", Error, OperationOutcome.IssueType.Login, 401, "A valid bearer token is required");
     public static readonly ErrorCode Forbidden = new("MEV-AUTH-002", Error, OperationOutcome.IssueType.Forbidden, 403, "The token's role may not use this endpoint");
 
+    // Audit trail.
+    public static readonly ErrorCode AuditUnavailable = new("MEV-AUDIT-001", Error, OperationOutcome.IssueType.Transient, 503, "The access could not be audited; nothing was returned");
+    public static readonly ErrorCode AuditEventNotAResource = new("MEV-AUDIT-002", Error, OperationOutcome.IssueType.NotSupported, 405, "AuditEvents are kept by the server; read them with GET /AuditEvent (role admin)");
+
+    // Limits that protect the service.
+    public static readonly ErrorCode TooManyEntries = new("MEV-LIMIT-001", Error, OperationOutcome.IssueType.TooLong, 413, "Too many Bundle entries");
+    public static readonly ErrorCode TooManyRequests = new("MEV-LIMIT-002", Error, OperationOutcome.IssueType.Throttled, 429, "Too many requests from this client");
+    public static readonly ErrorCode TimeBudgetExceeded = new("MEV-LIMIT-003", Error, OperationOutcome.IssueType.Timeout, 503, "Evaluation exceeded the synchronous time budget");
+
     // The service itself.
     public static readonly ErrorCode Unexpected = new("MEV-SRV-001", OperationOutcome.IssueSeverity.Fatal, OperationOutcome.IssueType.Exception, 500, "Unexpected server error");
 
@@ -83,6 +92,8 @@ public static class ErrorCatalogue
         UnknownSearchParameter, InvalidSearchValue, UnsupportedSearchForm,
         IngestIdMissing, IngestSummary, IngestAborted,
         Unauthenticated, Forbidden,
+        AuditUnavailable, AuditEventNotAResource,
+        TooManyEntries, TooManyRequests, TimeBudgetExceeded,
         Unexpected,
     ];
 

@@ -1,8 +1,10 @@
+using MeasureEval.Api.Audit;
 using MeasureEval.Api.Bundles;
 using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Health;
 using MeasureEval.Api.Ingest;
+using MeasureEval.Api.Limits;
 using MeasureEval.Api.Logging;
 using MeasureEval.Api.OpenApi;
 using MeasureEval.Api.Resources;
@@ -34,9 +36,19 @@ public static class ApiApplicationExtensions
         // Routing after the docs middleware, so requests it serves are not matched (and logged) as FHIR routes.
         app.UseRouting();
         app.UseAuthentication();
+        // After authentication (who) and before authorization, so refused requests (401, 403, 429) are audited too.
+        app.UseMiddleware<AuditMiddleware>();
+        app.UseRateLimiter();
         app.UseAuthorization();
         return app;
     }
+
+    /// <summary>
+    /// The group every route is mapped in: each audited request is recorded (<see cref="AuditEndpointFilter"/>) and
+    /// synchronous evaluations run within their time budget (<see cref="EvaluationBudgetFilter"/>).
+    /// </summary>
+    public static RouteGroupBuilder MapMeasureEvalRoutes(this IEndpointRouteBuilder app) =>
+        app.MapGroup("").AddEndpointFilter<AuditEndpointFilter>().AddEndpointFilter<EvaluationBudgetFilter>();
 
     /// <summary>All FHIR REST endpoints of the foundation (the engine maps its Measure endpoints beside them).</summary>
     public static IEndpointRouteBuilder MapMeasureEvalApi(this IEndpointRouteBuilder app)
@@ -47,6 +59,7 @@ public static class ApiApplicationExtensions
         app.MapIngestEndpoints();
         app.MapSearchEndpoints();
         app.MapResourceEndpoints();
+        app.MapAuditEventEndpoints();
         return app;
     }
 }

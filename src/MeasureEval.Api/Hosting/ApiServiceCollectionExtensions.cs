@@ -1,8 +1,10 @@
+using MeasureEval.Api.Audit;
 using MeasureEval.Api.Bundles;
 using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Health;
 using MeasureEval.Api.Ingest;
+using MeasureEval.Api.Limits;
 using MeasureEval.Api.OpenApi;
 using MeasureEval.Api.Search;
 using Microsoft.Extensions.DependencyInjection;
@@ -18,7 +20,10 @@ public static class ApiServiceCollectionExtensions
         ArgumentNullException.ThrowIfNull(services);
         services.AddOptions<IngestOptions>().BindConfiguration(IngestOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.AddOptions<SearchOptions>().BindConfiguration(SearchOptions.Section).ValidateDataAnnotations().ValidateOnStart();
+        services.AddOptions<LimitsOptions>().BindConfiguration(LimitsOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.TryAddSingleton(TimeProvider.System);
+        services.AddSingleton<AuditRecorder>();
+        services.AddMeasureEvalRateLimiting();
         services.AddSingleton<SearchService>();
         services.AddSingleton<BundlePlanner>();
         services.AddSingleton<BundleProcessor>();

@@ -19,6 +19,14 @@ public sealed class IngestOptions
     [Range(8, 1000)]
     public int MaxJsonDepth { get; set; } = 64;
 
+    /// <summary>
+    /// Entries accepted in one transaction or batch Bundle (<c>POST /</c>); more → 413. A transaction is one store session
+    /// held for all its entries, so this bounds how long one request keeps other writers waiting. <c>$ingest</c> streams
+    /// and is not limited by it.
+    /// </summary>
+    [Range(1, 1_000_000)]
+    public int MaxBundleEntries { get; set; } = 10_000;
+
     /// <summary>Resources committed per store session by <c>$ingest</c>.</summary>
     [Range(1, 100_000)]
     public int BulkBatchSize { get; set; } = 1000;

@@ -269,6 +269,13 @@ public static class MeasureEndpoints
             return null;
         }
 
+        // The configured limit, not the server's fixed default (as for every other body).
+        var sizeFeature = request.HttpContext.Features.Get<Microsoft.AspNetCore.Http.Features.IHttpMaxRequestBodySizeFeature>();
+        if (sizeFeature is { IsReadOnly: false })
+        {
+            sizeFeature.MaxRequestBodySize = limit;
+        }
+
         var reader = request.BodyReader;
         while (true)
         {

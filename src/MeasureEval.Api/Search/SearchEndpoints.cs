@@ -1,5 +1,8 @@
 using MeasureEval.Api.Capabilities;
+using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
+using MeasureEval.Api.Ingest;
+using Microsoft.Extensions.Options;
 using MeasureEval.Core.Storage;
 using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Http;
@@ -30,9 +33,16 @@ public static class SearchEndpoints
     public static Task<FhirResult> SearchAsync(string type, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken) =>
         RunAsync(type, request.Query, request, store, search, cancellationToken);
 
-    public static async Task<FhirResult> SearchPostAsync(string type, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken)
+    public static async Task<FhirResult> SearchPostAsync(
+        string type, HttpRequest request, IResourceStore store, SearchService search, IOptions<IngestOptions> options, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
+        ArgumentNullException.ThrowIfNull(options);
+        if (request.ContentLength > options.Value.MaxBodyBytes)
+        {
+            return FhirResult.Outcome(new FhirIssue(ErrorCatalogue.BodyTooLarge, $"The body exceeds the limit of {options.Value.MaxBodyBytes} bytes (Ingest:MaxBodyBytes)."));
+        }
+
         var parameters = request.Query.ToList();
         if (request.HasFormContentType)
         {

@@ -14,7 +14,7 @@ namespace MeasureEval.Storage.Common;
 /// (<c>ON CONFLICT</c> upserts, <c>LIMIT/OFFSET</c>, <c>TRUE/FALSE</c>). A provider supplies connections, the schema
 /// scripts and the few statements that lock.
 /// </summary>
-public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
+public abstract partial class SqlResourceStore : IResourceStore, IAsyncDisposable
 {
     /// <summary>Ids per query when streaming a chosen set of patients (well under both providers' parameter limits).</summary>
     private const int PatientIdChunk = 500;

@@ -47,5 +47,32 @@ internal static class PostgresSchema
         """
         CREATE TABLE index_state (format integer NOT NULL);
         """,
+        // The audit trail (one row per audited request) and the patients each event concerned; not resources.
+        """
+        CREATE TABLE audit_events (
+            id text COLLATE "C" NOT NULL PRIMARY KEY,
+            recorded bigint NOT NULL,
+            agent text COLLATE "C" NOT NULL,
+            role text,
+            payer text,
+            operation text NOT NULL,
+            interaction text NOT NULL,
+            action text NOT NULL,
+            method text NOT NULL,
+            route text NOT NULL,
+            status integer NOT NULL,
+            address text,
+            request_id text,
+            patient_count integer NOT NULL
+        );
+        CREATE INDEX audit_events_by_recorded ON audit_events (recorded, id);
+        CREATE INDEX audit_events_by_agent ON audit_events (agent, recorded);
+        CREATE TABLE audit_event_patients (
+            patient_id text COLLATE "C" NOT NULL,
+            event_id text COLLATE "C" NOT NULL,
+            PRIMARY KEY (patient_id, event_id)
+        );
+        CREATE INDEX audit_event_patients_by_event ON audit_event_patients (event_id);
+        """,
     ];
 }

@@ -47,5 +47,32 @@ internal static class SqliteSchema
         """
         CREATE TABLE index_state (format INTEGER NOT NULL);
         """,
+        // The audit trail (one row per audited request) and the patients each event concerned; not resources.
+        """
+        CREATE TABLE audit_events (
+            id TEXT NOT NULL PRIMARY KEY,
+            recorded INTEGER NOT NULL,
+            agent TEXT NOT NULL,
+            role TEXT,
+            payer TEXT,
+            operation TEXT NOT NULL,
+            interaction TEXT NOT NULL,
+            action TEXT NOT NULL,
+            method TEXT NOT NULL,
+            route TEXT NOT NULL,
+            status INTEGER NOT NULL,
+            address TEXT,
+            request_id TEXT,
+            patient_count INTEGER NOT NULL
+        ) WITHOUT ROWID;
+        CREATE INDEX audit_events_by_recorded ON audit_events (recorded, id);
+        CREATE INDEX audit_events_by_agent ON audit_events (agent, recorded);
+        CREATE TABLE audit_event_patients (
+            patient_id TEXT NOT NULL,
+            event_id TEXT NOT NULL,
+            PRIMARY KEY (patient_id, event_id)
+        ) WITHOUT ROWID;
+        CREATE INDEX audit_event_patients_by_event ON audit_event_patients (event_id);
+        """,
     ];
 }
