@@ -5,6 +5,8 @@ using Microsoft.Extensions.DependencyInjection;
 using Serilog;
 using Serilog.Core;
 using Serilog.Events;
+using Serilog.Filters;
+using Microsoft.Extensions.Configuration;
 using Serilog.Formatting.Compact;
 
 namespace MeasureEval.Api.Logging;
@@ -18,6 +20,12 @@ public static class LoggingSetup
     public const string JsonSwitch = "--log-json";
     public const string JsonKey = "Logging:Json";
 
+    /// <summary>Minimum level of the service's own events (default Information).</summary>
+    public const string LevelKey = "Logging:Level";
+
+    /// <summary>Minimum level of ASP.NET Core's events (default Warning: below that they describe routine request handling).</summary>
+    public const string FrameworkLevelKey = "Logging:FrameworkLevel";
+
     /// <summary>Turns the bare <c>--log-json</c> flag into a configuration value before the host parses arguments.</summary>
     public static string[] ExpandFlags(string[] args)
     {
@@ -29,16 +37,22 @@ public static class LoggingSetup
     {
         ArgumentNullException.ThrowIfNull(builder);
         var json = builder.Configuration.GetValue<bool>(JsonKey);
-        builder.Services.AddSerilog(config =>
+        var level = builder.Configuration.GetValue(LevelKey, LogEventLevel.Information);
+        var frameworkLevel = builder.Configuration.GetValue(FrameworkLevelKey, LogEventLevel.Warning);
+        builder.Services.AddSerilog((services, config) =>
         {
-            config.MinimumLevel.Information()
-                // Framework request logs carry raw paths (ids); the request log below replaces them.
-                .MinimumLevel.Override("Microsoft.AspNetCore", LogEventLevel.Warning)
+            config.MinimumLevel.Is(level)
+                .MinimumLevel.Override("Microsoft.AspNetCore", frameworkLevel)
                 // It logs exception messages, which may quote request data; FhirExceptionHandler logs instead.
                 .MinimumLevel.Override("Microsoft.AspNetCore.Diagnostics.ExceptionHandlerMiddleware", LogEventLevel.Fatal)
+                // "Request starting/finished" carry the raw path and query string (?identifier=…|MRN, ?name=…) at any
+                // level; the request log below replaces them with the route template.
+                .Filter.ByExcluding(Matching.FromSource("Microsoft.AspNetCore.Hosting.Diagnostics"))
                 .Enrich.FromLogContext()
                 // The framework's request scope adds the raw path; ids in it can identify a patient.
-                .Enrich.With<DropRequestPathEnricher>();
+                .Enrich.With<DropRequestPathEnricher>()
+                // Sinks registered as services (tests capture every event this way).
+                .ReadFrom.Services(services);
             if (json)
             {
                 config.WriteTo.Console(new RenderedCompactJsonFormatter());
