@@ -13,6 +13,31 @@ public sealed class IngestOptionsTests(SmallLimitsApiFactory factory) : IClassFi
     private readonly HttpClient _client = factory.CreateClient();
 
     [Fact]
+    public async System.Threading.Tasks.Task MaxBundleEntries_MoreEntries_Returns413AtBundleEntry()
+    {
+        var bundle = new Bundle { Type = Bundle.BundleType.Transaction };
+        for (var i = 0; i < 4; i++)
+        {
+            bundle.Entry.Add(new Bundle.EntryComponent
+            {
+                Resource = Patient($"entries-{i}"),
+                Request = new Bundle.RequestComponent { Method = Bundle.HTTPVerb.PUT, Url = $"Patient/entries-{i}" },
+            });
+        }
+
+        var tooMany = await _client.PostAsync("/", Json(bundle));
+        var afterRefusal = await _client.GetAsync("/Patient/entries-0");
+        bundle.Entry.RemoveAt(3);
+        var atLimit = await _client.PostAsync("/", Json(bundle));
+
+        Assert.Equal(HttpStatusCode.RequestEntityTooLarge, tooMany.StatusCode);
+        var issue = Issue(await ReadAsync<OperationOutcome>(tooMany), "MEV-LIMIT-001");
+        Assert.Equal(["Bundle.entry"], issue.Expression);
+        Assert.Equal(HttpStatusCode.NotFound, afterRefusal.StatusCode);
+        Assert.Equal(HttpStatusCode.OK, atLimit.StatusCode);
+    }
+
+    [Fact]
     public async System.Threading.Tasks.Task MaxBodyBytes_LargerBody_Returns413()
     {
         var response = await _client.PutAsync("/Patient/too-large-1", Json(Input("BadInput/too-large.json")));

@@ -40,6 +40,7 @@ public sealed class AuditMiddleware(RequestDelegate next)
 
     private static async Task FinishAsync(HttpContext context, AuditRecorder recorder, string name, AuditedRoute route, AuditTrail trail, int status)
     {
+        status = trail.FinalStatus ?? status;
         if (trail.EventId is null)
         {
             await recorder.TryAppendAsync(recorder.Build(context, name, route, status, trail));

@@ -26,6 +26,9 @@ public sealed class AuditTrail
 
     internal int ListedAtAppend { get; set; }
 
+    /// <summary>The status the access ended with when it differs from the response's (a streamed answer cut short).</summary>
+    public int? FinalStatus { get; set; }
+
     public static AuditTrail? Of(HttpContext context) => context?.Features.Get<AuditTrail>();
 
     public void AddPatient(string? patientId)

@@ -43,6 +43,7 @@ public sealed class EvaluationBudgetFilter(IOptions<LimitsOptions> options, Time
         // Disposed with the response: a streamed export keeps using the token after this filter returned.
         http.Response.RegisterForDispose(linked);
         http.Response.RegisterForDispose(timer);
+        // Only the handler's token: HttpContext.RequestAborted stays the client's, so the 503 below can still be written.
         for (var i = 0; i < context.Arguments.Count; i++)
         {
             if (context.Arguments[i] is CancellationToken)
@@ -51,18 +52,54 @@ public sealed class EvaluationBudgetFilter(IOptions<LimitsOptions> options, Time
             }
         }
 
-        http.RequestAborted = linked.Token;
         try
         {
-            return await next(context);
+            var result = await next(context);
+            // A streamed answer (the export) evaluates while it writes, after this filter has returned.
+            return result is IResult streamed and not FhirResult ? new BudgetedResult(streamed, timer, () => Exceeded(budget)) : result;
         }
         catch (OperationCanceledException) when (timer.IsCancellationRequested && !http.Response.HasStarted)
         {
-            var issue = new FhirIssue(
-                ErrorCatalogue.TimeBudgetExceeded,
-                $"The evaluation took longer than {budget.TotalSeconds.ToString(CultureInfo.InvariantCulture)} s (Limits:EvaluationTimeBudget) and was cancelled; "
-                + "send the request again with the header 'Prefer: respond-async' to run it in the background, or narrow it (subject, practitioner, measureId).");
-            return new RetryAfterResult(FhirResult.Outcome(issue.Code.HttpStatus, [issue]), RetryAfterSeconds);
+            return Exceeded(budget);
+        }
+    }
+
+    private static RetryAfterResult Exceeded(TimeSpan budget)
+    {
+        var issue = new FhirIssue(
+            ErrorCatalogue.TimeBudgetExceeded,
+            $"The evaluation took longer than {budget.TotalSeconds.ToString(CultureInfo.InvariantCulture)} s (Limits:EvaluationTimeBudget) and was cancelled; "
+            + "send the request again with the header 'Prefer: respond-async' to run it in the background, or narrow it (subject, practitioner, measureId).");
+        return new RetryAfterResult(FhirResult.Outcome(issue.Code.HttpStatus, [issue]), RetryAfterSeconds);
+    }
+}
+
+/// <summary>
+/// A streamed answer under a budget: cancelled before its first byte it becomes the 503; after, the connection is cut
+/// (an incomplete chunked body, which clients report as an error) and the audit records 503.
+/// </summary>
+internal sealed class BudgetedResult(IResult inner, CancellationTokenSource timer, Func<IResult> exceeded) : IResult, INestedHttpResult
+{
+    public IResult Result => inner;
+
+    public async Task ExecuteAsync(HttpContext httpContext)
+    {
+        ArgumentNullException.ThrowIfNull(httpContext);
+        try
+        {
+            await inner.ExecuteAsync(httpContext);
+        }
+        catch (OperationCanceledException) when (timer.IsCancellationRequested && !httpContext.RequestAborted.IsCancellationRequested)
+        {
+            Audit.AuditTrail.Of(httpContext)?.FinalStatus = StatusCodes.Status503ServiceUnavailable;
+            if (httpContext.Response.HasStarted)
+            {
+                httpContext.Abort();
+                return;
+            }
+
+            httpContext.Response.Clear();
+            await exceeded().ExecuteAsync(httpContext);
         }
     }
 }

@@ -61,6 +61,7 @@ public sealed class SmallLimitsApiFactory : ApiFactory
         ["Ingest:MaxBodyBytes"] = "4096",
         ["Ingest:MaxJsonDepth"] = "16",
         ["Ingest:BulkBatchSize"] = "2",
+        ["Ingest:MaxBundleEntries"] = "3",
         ["Search:MaxPageSize"] = "5",
     };
 }
