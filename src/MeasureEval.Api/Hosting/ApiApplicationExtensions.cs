@@ -26,6 +26,8 @@ public static class ApiApplicationExtensions
         app.UseMiddleware<SecurityHeadersMiddleware>();
         if (!app.Environment.IsDevelopment())
         {
+            // HSTS before the redirect, so browsers stop trying plain HTTP at all (sent on HTTPS answers only).
+            app.UseHsts();
             app.UseHttpsRedirection();
         }
 

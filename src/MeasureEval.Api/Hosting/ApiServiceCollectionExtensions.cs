@@ -24,6 +24,8 @@ public static class ApiServiceCollectionExtensions
         services.TryAddSingleton(TimeProvider.System);
         services.AddSingleton<AuditRecorder>();
         services.AddMeasureEvalRateLimiting();
+        // One year (common practice; the ASP.NET Core default is 30 days). Loopback hosts are left out by the middleware.
+        services.AddHsts(o => o.MaxAge = TimeSpan.FromDays(365));
         services.AddSingleton<SearchService>();
         services.AddSingleton<BundlePlanner>();
         services.AddSingleton<BundleProcessor>();

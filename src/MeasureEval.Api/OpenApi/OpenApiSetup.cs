@@ -21,6 +21,9 @@ public static class OpenApiSetup
                 Description = "FHIR R4 (4.0.1) REST interactions, transactions, bulk $ingest and quality measure operations. Errors are OperationOutcomes with stable MEV-* codes.",
             });
             options.OperationFilter<FhirOperationFilter>();
+            options.AddSecurityDefinition(BearerSecurityFilter.SchemeName, BearerSecurityFilter.Scheme);
+            // After the FHIR filter, which sets the responses afresh.
+            options.OperationFilter<BearerSecurityFilter>();
         });
         return services;
     }
