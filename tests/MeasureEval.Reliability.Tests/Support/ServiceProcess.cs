@@ -37,6 +37,7 @@ public sealed class ServiceProcess : IDisposable
         start.Environment["Storage__ConnectionString"] = $"Data Source={databasePath}";
         // Loopback only: the service refuses this switch on any other address.
         start.Environment["Auth__Disabled"] = "true";
+        start.Environment["Limits__RequestsPerMinute"] = "100000000";
         start.Environment["ASPNETCORE_ENVIRONMENT"] = "Production";
         var process = Process.Start(start) ?? throw new InvalidOperationException("dotnet did not start");
         // Drain the pipes so that a chatty log never blocks the service.
