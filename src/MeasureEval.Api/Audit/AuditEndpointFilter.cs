@@ -29,6 +29,11 @@ public sealed class AuditEndpointFilter(AuditRecorder recorder) : IEndpointFilte
             ? FhirResult.Outcome(new FhirIssue(ErrorCatalogue.AuditEventNotAResource, "AuditEvent is written by the server only and read with GET /AuditEvent or GET /AuditEvent/{id}."))
             : await next(context);
         var status = Inspect(result, trail);
+        if (result is FhirResult { Resource: Hl7.Fhir.Model.Bundle { Type: Hl7.Fhir.Model.Bundle.BundleType.BatchResponse } })
+        {
+            route = route with { Interaction = "batch" };
+        }
+
         var record = recorder.Build(http, name!, route, status, trail);
         trail.ListedAtAppend = trail.Listed.Count;
         if (await recorder.TryAppendAsync(record))

@@ -5,7 +5,7 @@ namespace MeasureEval.Api.Audit;
 
 /// <summary>
 /// Runs after authentication and before authorization on audited routes: attaches the <see cref="AuditTrail"/>, and
-/// records what never reached the endpoint filter (401, 403, 429, unexpected errors) and the end of streamed answers.
+/// records what never reached the endpoint filter (401, 403, unexpected errors) and the end of streamed answers.
 /// </summary>
 public sealed class AuditMiddleware(RequestDelegate next)
 {
@@ -41,6 +41,13 @@ public sealed class AuditMiddleware(RequestDelegate next)
     private static async Task FinishAsync(HttpContext context, AuditRecorder recorder, string name, AuditedRoute route, AuditTrail trail, int status)
     {
         status = trail.FinalStatus ?? status;
+        if (trail.EventId is null && status == StatusCodes.Status429TooManyRequests)
+        {
+            // Refused by the rate limiter before authorization: nothing was read or written, and recording each refusal
+            // would hand a flooding client the store's write path the limiter exists to protect.
+            return;
+        }
+
         if (trail.EventId is null)
         {
             await recorder.TryAppendAsync(recorder.Build(context, name, route, status, trail));

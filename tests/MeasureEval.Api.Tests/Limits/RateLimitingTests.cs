@@ -49,5 +49,8 @@ public sealed class RateLimitingTests(TinyRateLimitApiFactory factory) : IClassF
         Assert.Equal(OperationOutcome.IssueType.Throttled, Issue(outcome, "MEV-LIMIT-002").Code);
         Assert.Equal(HttpStatusCode.OK, otherClient.StatusCode);
         Assert.All(metadata, s => Assert.Equal(HttpStatusCode.OK, s));
+        // The refusal itself is not audited (nothing was read); the three searches are.
+        var audited = await ReadAsync<Bundle>(await factory.CreateClient().GetAsync("/AuditEvent?agent=rate-one"));
+        Assert.Equal(TinyRateLimitApiFactory.PerMinute, audited.Total);
     }
 }
