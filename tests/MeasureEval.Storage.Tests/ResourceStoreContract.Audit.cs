@@ -44,6 +44,22 @@ public abstract partial class ResourceStoreContract
     }
 
     [SkippableFact]
+    public async Task AppendAsync_ConcurrentAppends_AllKept()
+    {
+        await using var store = await CreateStoreAsync();
+
+        // Appends arriving together are written in groups; each caller must still find its own record kept.
+        await Task.WhenAll(Enumerable.Range(0, 64).Select(i =>
+            Task.Run(() => store.AppendAsync(Audit($"c{i:D3}", Start.AddMilliseconds(i), "agent-" + (i % 4), [$"p-{i}"]), default))));
+        var all = await store.SearchAuditAsync(new AuditQuery { Count = 100 }, default);
+
+        Assert.Equal(64, all.Total);
+        Assert.Equal(Enumerable.Range(0, 64).Select(i => $"c{i:D3}").Reverse(), all.Matches.Select(m => m.Id));
+        Assert.Equal(16, (await store.SearchAuditAsync(new AuditQuery { Agent = "agent-1" }, default)).Total);
+        Assert.Equal(["c007"], (await store.SearchAuditAsync(new AuditQuery { PatientId = "p-7" }, default)).Matches.Select(m => m.Id));
+    }
+
+    [SkippableFact]
     public async Task CompleteAsync_StreamedEvent_AddsPatientsAndStatus()
     {
         await using var store = await CreateStoreAsync();

@@ -13,20 +13,94 @@ public abstract partial class SqlResourceStore : IAuditStore
 {
     private const string AuditColumns = "id, recorded, agent, role, payer, operation, interaction, action, method, route, status, address, request_id, patient_count";
 
+    /// <summary>Records waiting for the next group write, and the right to write one.</summary>
+    private readonly System.Collections.Concurrent.ConcurrentQueue<(AuditRecord Record, System.Threading.Tasks.TaskCompletionSource Written)> _auditQueue = new();
+    private readonly SemaphoreSlim _auditGate = new(1, 1);
+
+    /// <summary>Most records one group write takes.</summary>
+    private const int AuditGroup = 256;
+
+    /// <summary>
+    /// Group commit: concurrent appends queue, and whoever holds the gate writes everything queued in one transaction,
+    /// so N requests arriving together cost one write, not N (on SQLite they share its single writer with all sessions).
+    /// Each caller's task completes only once its own record is committed (or fails with the group's error).
+    /// </summary>
     public async System.Threading.Tasks.Task AppendAsync(AuditRecord record, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(record);
-        await WriteAuditAsync(async (connection, transaction) =>
+        var written = new System.Threading.Tasks.TaskCompletionSource(System.Threading.Tasks.TaskCreationOptions.RunContinuationsAsynchronously);
+        _auditQueue.Enqueue((record, written));
+        while (!written.Task.IsCompleted)
         {
-            await using (var insert = Command(connection, transaction, $"INSERT INTO audit_events ({AuditColumns}) VALUES (@p0, @p1, @p2, @p3, @p4, @p5, @p6, @p7, @p8, @p9, @p10, @p11, @p12, @p13)",
-                record.Id, record.Recorded.ToUnixTimeMilliseconds(), record.Agent, record.Role, record.Payer, record.Operation, record.Interaction,
-                record.Action, record.Method, record.Route, record.Status, record.Address, record.RequestId, Math.Max(record.PatientCount, record.Patients.Count)))
+            await _auditGate.WaitAsync(cancellationToken).ConfigureAwait(false);
+            try
             {
-                await insert.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+                if (!written.Task.IsCompleted)
+                {
+                    await WriteAuditGroupAsync(cancellationToken).ConfigureAwait(false);
+                }
+            }
+            finally
+            {
+                _auditGate.Release();
+            }
+        }
+
+        await written.Task.ConfigureAwait(false);
+    }
+
+    private async System.Threading.Tasks.Task WriteAuditGroupAsync(CancellationToken cancellationToken)
+    {
+        var group = new List<(AuditRecord Record, System.Threading.Tasks.TaskCompletionSource Written)>();
+        while (group.Count < AuditGroup && _auditQueue.TryDequeue(out var next))
+        {
+            group.Add(next);
+        }
+
+        if (group.Count == 0)
+        {
+            return;
+        }
+
+        try
+        {
+            await WriteAuditAsync(async (connection, transaction) =>
+            {
+                await using var insert = Command(connection, transaction, $"INSERT INTO audit_events ({AuditColumns}) VALUES (@p0, @p1, @p2, @p3, @p4, @p5, @p6, @p7, @p8, @p9, @p10, @p11, @p12, @p13)",
+                    new object?[14]);
+                foreach (var (record, _) in group)
+                {
+                    object?[] values =
+                    [
+                        record.Id, record.Recorded.ToUnixTimeMilliseconds(), record.Agent, record.Role, record.Payer, record.Operation, record.Interaction,
+                        record.Action, record.Method, record.Route, record.Status, record.Address, record.RequestId, Math.Max(record.PatientCount, record.Patients.Count),
+                    ];
+                    for (var i = 0; i < values.Length; i++)
+                    {
+                        insert.Parameters[i].Value = values[i] ?? DBNull.Value;
+                    }
+
+                    await insert.ExecuteNonQueryAsync(cancellationToken).ConfigureAwait(false);
+                    await InsertAuditPatientsAsync(connection, transaction, record.Id, record.Patients, cancellationToken).ConfigureAwait(false);
+                }
+            }, cancellationToken).ConfigureAwait(false);
+        }
+        catch (Exception ex)
+        {
+            // Every caller of the group learns of the failure through its own task (the writer's record may be in a
+            // later group); none is told its record was kept.
+            foreach (var (_, written) in group)
+            {
+                written.TrySetException(ex);
             }
 
-            await InsertAuditPatientsAsync(connection, transaction, record.Id, record.Patients, cancellationToken).ConfigureAwait(false);
-        }, cancellationToken).ConfigureAwait(false);
+            return;
+        }
+
+        foreach (var (_, written) in group)
+        {
+            written.TrySetResult();
+        }
     }
 
     public async System.Threading.Tasks.Task CompleteAsync(string id, IReadOnlyList<string> morePatients, int patientCount, int status, CancellationToken cancellationToken)
