@@ -130,7 +130,9 @@ internal sealed class ScopeCheck(DbConnection connection, DataScope scope)
 
     private static string MemberExists(DataScope scope, string patientColumn, List<object?> values)
     {
-        var sql = $"EXISTS (SELECT 1 FROM payer_members m WHERE m.payer_id = {Next(values, scope.PayerOrganizationId)} AND m.patient_id = {patientColumn}";
+        // IN rather than a correlated EXISTS, so the planner may drive from the payer's (few) members instead of probing
+        // every row of a large population.
+        var sql = $"{patientColumn} IN (SELECT m.patient_id FROM payer_members m WHERE m.payer_id = {Next(values, scope.PayerOrganizationId)}";
         if (scope.PeriodStart is { } start && scope.PeriodEnd is { } end)
         {
             sql += $" AND (m.period_start IS NULL OR m.period_start <= {Next(values, Day(end))}) AND (m.period_end IS NULL OR m.period_end >= {Next(values, Day(start))})";
