@@ -3,6 +3,7 @@ using MeasureEval.Api.Errors;
 using MeasureEval.Cluster.Hosting;
 using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Reports;
@@ -10,12 +11,19 @@ using MeasureEval.Engine.Reports;
 namespace MeasureEval.Api.Measures;
 
 /// <summary>Runs $evaluate-measure: picks the patients (one, a Group's members, everyone), streams them once for all measures.</summary>
-/// <remarks>In cluster mode (<see cref="ClusterEvaluation"/> registered) a population is evaluated partitioned over the nodes; the reports are the same.</remarks>
+/// <remarks>
+/// In cluster mode (<see cref="ClusterEvaluation"/> registered) a population is evaluated partitioned over the nodes; the reports are the same.
+/// Every patient comes from the store within the caller's scope during the measurement period: a payer's report counts
+/// its members only, and another payer's patient or Group answers as unknown.
+/// </remarks>
 public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time, ClusterEvaluation? cluster = null)
 {
     public async Task<(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error)> EvaluateAsync(
-        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, CancellationToken cancellationToken)
+        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, DataScope scope, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(parameters);
+        ArgumentNullException.ThrowIfNull(scope);
+        var during = scope.During(parameters.Period.Start, parameters.Period.End);
         var builder = new MeasureReportBuilder(time);
         var evaluator = new MeasureEvaluator(repository, new StoreRecordSource(store));
         IReadOnlyCollection<string>? patientIds = null;
@@ -25,7 +33,7 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
         }
         else if (parameters.SubjectType == "Group")
         {
-            var members = await GroupMembersAsync(parameters.SubjectId!, cancellationToken);
+            var members = await GroupMembersAsync(parameters.SubjectId!, scope, cancellationToken);
             if (members is null)
             {
                 return ([], new FhirIssue(MeasureErrors.UnknownSubject, $"Group/{parameters.SubjectId} is not stored", "subject"));
@@ -36,7 +44,7 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
 
         if (parameters.ReportKind == ReportKind.Subject)
         {
-            var facts = await store.GetPatientFactsAsync(parameters.SubjectId!, cancellationToken);
+            var facts = await store.GetPatientFactsAsync(parameters.SubjectId!, during, cancellationToken);
             if (facts is null)
             {
                 return ([], new FhirIssue(MeasureErrors.UnknownSubject, $"nothing is stored for Patient/{parameters.SubjectId}", "subject"));
@@ -48,9 +56,9 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
 
         var keepSubjects = parameters.ReportKind == ReportKind.SubjectList;
         var summaries = cluster is not null
-            ? (await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects)).Summaries
+            ? (await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects, scope)).Summaries
             : await new PopulationEvaluator(evaluator).SummarizeAsync(
-                Filter(store.StreamPatientFactsAsync(patientIds, cancellationToken), parameters.PractitionerReference, cancellationToken),
+                Filter(store.StreamPatientFactsAsync(patientIds, during, cancellationToken), parameters.PractitionerReference, cancellationToken),
                 measures, parameters.Period, keepSubjects, cancellationToken);
         return ([.. summaries.Select(s => parameters.ReportKind == ReportKind.SubjectList ? builder.SubjectList(s) : builder.Summary(s))], null);
     }
@@ -68,9 +76,9 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
     }
 
     /// <summary>The patient ids among the Group's members (other member types are not patients), or null when no such Group is stored.</summary>
-    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, CancellationToken cancellationToken)
+    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, DataScope scope, CancellationToken cancellationToken)
     {
-        var stored = await store.ReadAsync("Group", id, cancellationToken);
+        var stored = await store.ReadAsync("Group", id, scope, cancellationToken);
         if (stored is not { Deleted: false, Json: { } json })
         {
             return null;

@@ -3,6 +3,8 @@ using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Ingest;
 using Microsoft.Extensions.Options;
+using System.Security.Claims;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Http;
@@ -30,11 +32,11 @@ public static class SearchEndpoints
         return app;
     }
 
-    public static Task<FhirResult> SearchAsync(string type, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken) =>
-        RunAsync(type, request.Query, request, store, search, cancellationToken);
+    public static Task<FhirResult> SearchAsync(string type, HttpRequest request, ClaimsPrincipal user, IResourceStore store, SearchService search, CancellationToken cancellationToken) =>
+        RunAsync(type, request.Query, request, CallerScope.Of(user), store, search, cancellationToken);
 
     public static async Task<FhirResult> SearchPostAsync(
-        string type, HttpRequest request, IResourceStore store, SearchService search, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+        string type, HttpRequest request, ClaimsPrincipal user, IResourceStore store, SearchService search, IOptions<IngestOptions> options, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(options);
@@ -50,13 +52,13 @@ public static class SearchEndpoints
             parameters.AddRange(form);
         }
 
-        return await RunAsync(type, parameters, request, store, search, cancellationToken);
+        return await RunAsync(type, parameters, request, CallerScope.Of(user), store, search, cancellationToken);
     }
 
     private static async Task<FhirResult> RunAsync(
-        string type, IEnumerable<KeyValuePair<string, StringValues>> parameters, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken)
+        string type, IEnumerable<KeyValuePair<string, StringValues>> parameters, HttpRequest request, DataScope scope, IResourceStore store, SearchService search, CancellationToken cancellationToken)
     {
-        if (!search.TryParseSearch(type, parameters, FhirPrefer.Of(request).StrictHandling, out var parsed, out var issues))
+        if (!search.TryParseSearch(type, parameters, scope, FhirPrefer.Of(request).StrictHandling, out var parsed, out var issues))
         {
             return FhirResult.Outcome(issues);
         }

@@ -42,18 +42,26 @@ public sealed class AuditEventEndpointsTests(ApiFactory factory) : IClassFixture
         (await admin.PutAsync("/Patient/audit-refused-1", Json(Patient("audit-refused-1")))).EnsureSuccessStatusCode();
         var payer = factory.CreateClient();
         payer.DefaultRequestHeaders.Authorization = TestTokens.Header("payer", "cedar-valley");
+        var claimless = factory.CreateClient();
+        claimless.DefaultRequestHeaders.Authorization = new("Bearer", TestTokens.Mint("payer", subject: "payer-without-claim"));
 
-        var forbidden = await payer.GetAsync("/Patient/audit-refused-1");
+        var notMember = await payer.GetAsync("/Patient/audit-refused-1");
+        var forbidden = await claimless.GetAsync("/Patient/audit-refused-1");
         var missing = await Client("analyst").GetAsync("/Patient/audit-missing-1");
         var events = await SearchAsync(admin, "/AuditEvent?agent=test-payer");
+        var refusedEvents = await SearchAsync(admin, "/AuditEvent?agent=payer-without-claim");
         var analystEvents = await SearchAsync(admin, "/AuditEvent?agent=test-analyst");
 
+        // Not the plan's member: answered as unknown, recorded with the plan as a second agent.
+        Assert.Equal(HttpStatusCode.NotFound, notMember.StatusCode);
+        var hidden = Assert.Single(events, e => e.OutcomeDesc == "HTTP 404");
+        Assert.Contains(hidden.Agent, a => a.Who?.Reference == "Organization/cedar-valley" && a.Requestor == false);
+        // A payer token without its payer claim is refused by authorization, before any handler: still recorded.
         Assert.Equal(HttpStatusCode.Forbidden, forbidden.StatusCode);
-        Assert.Equal(HttpStatusCode.NotFound, missing.StatusCode);
-        var refused = Assert.Single(events, e => e.OutcomeDesc == "HTTP 403");
+        var refused = Assert.Single(refusedEvents, e => e.OutcomeDesc == "HTTP 403");
         // audit-event-outcome 4: minor failure (the request was refused).
         Assert.Equal(AuditEvent.AuditEventOutcome.N4, refused.Outcome);
-        Assert.Contains(refused.Agent, a => a.Who?.Reference == "Organization/cedar-valley" && a.Requestor == false);
+        Assert.Equal(HttpStatusCode.NotFound, missing.StatusCode);
         Assert.Contains(analystEvents, e => e.OutcomeDesc == "HTTP 404" && e.Outcome == AuditEvent.AuditEventOutcome.N4);
     }
 

@@ -3,6 +3,7 @@ using Hl7.Fhir.Model;
 using MeasureEval.Api.Tests.Support;
 using MeasureEval.Core.Audit;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Microsoft.AspNetCore.Hosting;
 using Microsoft.AspNetCore.TestHost;
@@ -20,20 +21,20 @@ public sealed class StallingStore(IResourceStore inner) : IResourceStore
 
     public System.Threading.Tasks.Task<bool> IsReadyAsync(CancellationToken cancellationToken) => inner.IsReadyAsync(cancellationToken);
 
-    public System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, CancellationToken cancellationToken) => inner.ReadAsync(resourceType, id, cancellationToken);
+    public System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, DataScope scope, CancellationToken cancellationToken) => inner.ReadAsync(resourceType, id, scope, cancellationToken);
 
-    public System.Threading.Tasks.Task<StoredResource?> ReadVersionAsync(string resourceType, string id, int versionId, CancellationToken cancellationToken) => inner.ReadVersionAsync(resourceType, id, versionId, cancellationToken);
+    public System.Threading.Tasks.Task<StoredResource?> ReadVersionAsync(string resourceType, string id, int versionId, DataScope scope, CancellationToken cancellationToken) => inner.ReadVersionAsync(resourceType, id, versionId, scope, cancellationToken);
 
-    public System.Threading.Tasks.Task<IReadOnlyList<StoredResource>> HistoryAsync(string resourceType, string id, CancellationToken cancellationToken) => inner.HistoryAsync(resourceType, id, cancellationToken);
+    public System.Threading.Tasks.Task<IReadOnlyList<StoredResource>> HistoryAsync(string resourceType, string id, DataScope scope, CancellationToken cancellationToken) => inner.HistoryAsync(resourceType, id, scope, cancellationToken);
 
     public System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken) => inner.SearchAsync(query, cancellationToken);
 
     public System.Threading.Tasks.Task<IStoreSession> BeginWriteAsync(CancellationToken cancellationToken) => inner.BeginWriteAsync(cancellationToken);
 
-    public System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, CancellationToken cancellationToken) => inner.GetPatientFactsAsync(patientId, cancellationToken);
+    public System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, DataScope scope, CancellationToken cancellationToken) => inner.GetPatientFactsAsync(patientId, scope, cancellationToken);
 
     public async IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(
-        IReadOnlyCollection<string>? patientIds, [System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellationToken)
+        IReadOnlyCollection<string>? patientIds, DataScope scope, [System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellationToken)
     {
         await System.Threading.Tasks.Task.Delay(Timeout.Infinite, cancellationToken);
         yield break;
