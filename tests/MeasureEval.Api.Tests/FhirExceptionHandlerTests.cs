@@ -20,6 +20,8 @@ public sealed class FhirExceptionHandlerTests(ApiFactory factory) : IClassFixtur
             var real = services.Single(d => d.ServiceType == typeof(IResourceStore));
             services.Remove(real);
             services.AddSingleton<IResourceStore>(sp => new ReadFailsStore((IResourceStore)real.ImplementationFactory!(sp)));
+            // The audit trail stays on the real store: only the read under test fails.
+            services.AddSingleton<MeasureEval.Core.Audit.IAuditStore>(sp => (MeasureEval.Core.Audit.IAuditStore)((ReadFailsStore)sp.GetRequiredService<IResourceStore>()).Inner);
         }));
         var client = failing.CreateClient();
 
@@ -36,6 +38,8 @@ public sealed class FhirExceptionHandlerTests(ApiFactory factory) : IClassFixtur
     /// <summary>The real store, except that reads fail as a broken disk would.</summary>
     private sealed class ReadFailsStore(IResourceStore inner) : IResourceStore
     {
+        public IResourceStore Inner => inner;
+
         public System.Threading.Tasks.Task InitializeAsync(CancellationToken cancellationToken) => inner.InitializeAsync(cancellationToken);
 
         public System.Threading.Tasks.Task<bool> IsReadyAsync(CancellationToken cancellationToken) => inner.IsReadyAsync(cancellationToken);
