@@ -80,10 +80,10 @@ public abstract partial class ResourceStoreContract
         await using var store = await CreateStoreAsync();
         await store.AppendAsync(Audit("0001", Start, "analyst-1", ["p-1"]), default);
 
-        var search = await store.SearchAsync(new MeasureEval.Core.Storage.SearchQuery("AuditEvent"), default);
+        var search = await store.SearchAsync(new MeasureEval.Core.Storage.SearchQuery("AuditEvent") { Scope = MeasureEval.Core.Security.DataScope.Unrestricted }, default);
 
         Assert.Equal(0, search.Total);
-        Assert.Null(await store.ReadAsync("AuditEvent", "0001", default));
+        Assert.Null(await store.ReadAsync("AuditEvent", "0001", MeasureEval.Core.Security.DataScope.Unrestricted, default));
     }
 
     private static AuditRecord Audit(string id, DateTimeOffset recorded, string agent, IReadOnlyList<string> patients) => new()
