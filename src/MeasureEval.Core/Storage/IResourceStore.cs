@@ -61,6 +61,13 @@ public interface IStoreSession : IAsyncDisposable
 
     System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken);
 
+    /// <summary>
+    /// Call before the search of a conditional create: other sessions locking an equal condition wait until this session
+    /// ends, so two of them cannot both find no match and both create. Where sessions already run one at a time
+    /// (SQLite) this does nothing.
+    /// </summary>
+    System.Threading.Tasks.Task LockConditionAsync(SearchQuery condition, CancellationToken cancellationToken);
+
     System.Threading.Tasks.Task CommitAsync(CancellationToken cancellationToken);
 }
 

@@ -59,6 +59,12 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
     /// </summary>
     internal abstract string? LockForRebuildSql { get; }
 
+    /// <summary>
+    /// Takes a lock held until the transaction ends on the 64-bit key @p0 (a conditional create's condition), or null where
+    /// one write session at a time already excludes the race.
+    /// </summary>
+    internal abstract string? LockConditionSql { get; }
+
     protected abstract ValueTask<DbConnection> OpenConnectionAsync(CancellationToken cancellationToken);
 
     internal ValueTask<DbConnection> OpenReaderAsync(CancellationToken cancellationToken) => OpenConnectionAsync(cancellationToken);
