@@ -54,6 +54,8 @@ public sealed class FhirExceptionHandlerTests(ApiFactory factory) : IClassFixtur
 
         public System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, CancellationToken cancellationToken) => inner.GetPatientFactsAsync(patientId, cancellationToken);
 
+        public System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken) => inner.CountPatientFactsAsync(cancellationToken);
+
         public IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, CancellationToken cancellationToken) =>
             inner.StreamPatientFactsAsync(patientIds, cancellationToken);
     }

@@ -66,15 +66,23 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
         return issues.Count > 0 ? (null, issues) : (new CareGapSelection(repository, measures, patientIds), issues);
     }
 
-    public async IAsyncEnumerable<PatientGaps> StreamAsync(CareGapSelection selection, CareGapQuery query, [EnumeratorCancellation] CancellationToken cancellationToken)
+    public IAsyncEnumerable<PatientGaps> StreamAsync(CareGapSelection selection, CareGapQuery query, CancellationToken cancellationToken) =>
+        StreamAsync(selection, query, progress: null, cancellationToken);
+
+    /// <summary>As above, telling <paramref name="progress"/> how many patients were read (asynchronous jobs).</summary>
+    public async IAsyncEnumerable<PatientGaps> StreamAsync(
+        CareGapSelection selection, CareGapQuery query, IProgress<EvaluationProgress>? progress, [EnumeratorCancellation] CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(selection);
         ArgumentNullException.ThrowIfNull(query);
         var records = new StoreRecordSource(store);
         var evaluator = new MeasureEvaluator(selection.Repository, records);
         var analyzer = new GapAnalyzer(evaluator, records);
+        var total = progress is null ? 0 : selection.PatientIds?.Count ?? await store.CountPatientFactsAsync(cancellationToken);
+        long read = 0;
         await foreach (var facts in store.StreamPatientFactsAsync(selection.PatientIds, cancellationToken))
         {
+            progress?.Report(new EvaluationProgress(++read, total, EvaluationProgress.Patients));
             if (!OnPanel(facts, query.Practitioner) || !CoveredBy(facts, query.Organization, query.Period))
             {
                 continue;

@@ -6,16 +6,25 @@ using MeasureEval.Core.Index;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Reports;
+using Microsoft.Extensions.Options;
 
 namespace MeasureEval.Api.Measures;
 
 /// <summary>Runs $evaluate-measure: picks the patients (one, a Group's members, everyone), streams them once for all measures.</summary>
 /// <remarks>In cluster mode (<see cref="ClusterEvaluation"/> registered) a population is evaluated partitioned over the nodes; the reports are the same.</remarks>
-public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time, ClusterEvaluation? cluster = null)
+/// <remarks>A single-node population is evaluated on <see cref="EvaluationOptions.Workers"/> threads; the reports equal the serial ones.</remarks>
+public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time, IOptions<EvaluationOptions> options, ClusterEvaluation? cluster = null)
 {
+    public Task<(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error)> EvaluateAsync(
+        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, CancellationToken cancellationToken) =>
+        EvaluateAsync(repository, measures, parameters, progress: null, cancellationToken);
+
+    /// <summary>As above, telling <paramref name="progress"/> how many patients are done (asynchronous jobs).</summary>
     public async Task<(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error)> EvaluateAsync(
-        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, CancellationToken cancellationToken)
+        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, IProgress<EvaluationProgress>? progress,
+        CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(parameters);
         var builder = new MeasureReportBuilder(time);
         var evaluator = new MeasureEvaluator(repository, new StoreRecordSource(store));
         IReadOnlyCollection<string>? patientIds = null;
@@ -43,23 +52,37 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
             }
 
             var results = evaluator.EvaluateAll(measures, facts, parameters.Period);
+            progress?.Report(new EvaluationProgress(1, 1, EvaluationProgress.Patients));
             return ([.. measures.Select((m, i) => builder.Individual(m, parameters.Period, results[i]))], null);
         }
 
         var keepSubjects = parameters.ReportKind == ReportKind.SubjectList;
-        var summaries = cluster is not null
-            ? (await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects)).Summaries
-            : await new PopulationEvaluator(evaluator).SummarizeAsync(
-                Filter(store.StreamPatientFactsAsync(patientIds, cancellationToken), parameters.PractitionerReference, cancellationToken),
+        IReadOnlyList<PopulationSummary> summaries;
+        if (cluster is not null)
+        {
+            summaries = (await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects)).Summaries;
+        }
+        else
+        {
+            // The total counts every patient streamed; the practitioner filter drops some of them after the count.
+            var total = progress is null ? 0 : patientIds?.Count ?? await store.CountPatientFactsAsync(cancellationToken);
+            summaries = await new PopulationEvaluator(evaluator, options.Value.EffectiveWorkers).SummarizeAsync(
+                Filter(store.StreamPatientFactsAsync(patientIds, cancellationToken), parameters.PractitionerReference, progress, total, cancellationToken),
                 measures, parameters.Period, keepSubjects, cancellationToken);
+        }
+
         return ([.. summaries.Select(s => parameters.ReportKind == ReportKind.SubjectList ? builder.SubjectList(s) : builder.Summary(s))], null);
     }
 
+    /// <summary>The practitioner's panel; progress counts every patient read (filtered out or not), so it reaches the total.</summary>
     private static async IAsyncEnumerable<PatientFacts> Filter(
-        IAsyncEnumerable<PatientFacts> patients, string? practitioner, [System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellationToken)
+        IAsyncEnumerable<PatientFacts> patients, string? practitioner, IProgress<EvaluationProgress>? progress, long total,
+        [System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellationToken)
     {
+        long read = 0;
         await foreach (var patient in patients.WithCancellation(cancellationToken))
         {
+            progress?.Report(new EvaluationProgress(++read, total, EvaluationProgress.Patients));
             if (practitioner is null || patient.Demographics?.GeneralPractitioner == practitioner)
             {
                 yield return patient;

@@ -35,6 +35,9 @@ public interface IResourceStore
     /// <summary>One patient's index entry, or null when nothing is stored for that patient.</summary>
     System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, CancellationToken cancellationToken);
 
+    /// <summary>How many patients have an index entry (what a full <see cref="StreamPatientFactsAsync"/> yields), for progress reports.</summary>
+    System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken);
+
     /// <summary>
     /// Streams index entries in ascending patient id order: all patients when <paramref name="patientIds"/> is null,
     /// otherwise just those (unknown ids are skipped). Memory does not grow with the population.

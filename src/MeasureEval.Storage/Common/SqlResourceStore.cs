@@ -208,6 +208,20 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         }
     }
 
+    /// <summary>
+    /// Runs <paramref name="write"/> in a write transaction of its own, queued like a write session (SQLite: behind the
+    /// one writer), and commits it: for small writes outside the resource tables (the job table).
+    /// </summary>
+    internal async System.Threading.Tasks.Task<T> WriteAsync<T>(Func<DbConnection, DbTransaction, System.Threading.Tasks.Task<T>> write, CancellationToken cancellationToken)
+    {
+        using var writer = await AcquireWriterAsync(cancellationToken).ConfigureAwait(false);
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var transaction = await BeginWriteTransactionAsync(connection, cancellationToken).ConfigureAwait(false);
+        var result = await write(connection, transaction).ConfigureAwait(false);
+        await transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
+        return result;
+    }
+
     public async System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(patientId);
@@ -217,6 +231,13 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         return await reader.ReadAsync(cancellationToken).ConfigureAwait(false) && !reader.IsDBNull(0)
             ? PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0))
             : null;
+    }
+
+    public async System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var command = Command(connection, null, "SELECT COUNT(*) FROM patient_index WHERE facts IS NOT NULL");
+        return Convert.ToInt64(await command.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false), CultureInfo.InvariantCulture);
     }
 
     public async IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(
