@@ -23,9 +23,11 @@ public static class JobEndpoints
     {
         var group = app.MapGroup("").WithTags("Asynchronous jobs");
         group.MapGet("/jobs/{id}", StatusAsync).WithName("job-status").RequireAuthorization(AccessPolicies.PatientData)
-            .WithSummary("Status of an asynchronous request: 202 with X-Progress and Retry-After while it runs; then the answer the synchronous request would have given (status, content type, body); 404 when unknown, another caller's, or cancelled");
+            .WithSummary("Status of an asynchronous request: 202 with X-Progress and Retry-After while it runs; then the answer the synchronous request would have given (status, content type, body); 404 when unknown, another caller's, or cancelled")
+            .Produces(StatusCodes.Status200OK).Produces(StatusCodes.Status202Accepted).Produces(StatusCodes.Status404NotFound, contentType: FhirFormat.FhirJson);
         group.MapDelete("/jobs/{id}", CancelAsync).WithName("job-cancel").RequireAuthorization(AccessPolicies.PatientData)
-            .WithSummary("Cancel an asynchronous request (202); its status URL answers 404 afterwards");
+            .WithSummary("Cancel an asynchronous request (202); its status URL answers 404 afterwards")
+            .Produces(StatusCodes.Status202Accepted, contentType: FhirFormat.FhirJson).Produces(StatusCodes.Status404NotFound, contentType: FhirFormat.FhirJson);
         return app;
     }
 
