@@ -7,6 +7,7 @@ using MeasureEval.Core.Index;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Gaps;
+using Microsoft.Extensions.Options;
 
 namespace MeasureEval.Api.CareGaps;
 
@@ -20,8 +21,15 @@ public sealed record CareGapSelection(MeasureRepository Repository, IReadOnlyLis
 /// Picks the patients (one, a Group's members, everyone), narrows them to a panel or a payer's members, and streams
 /// their gaps: each patient's facts are read once for all measures, and nothing grows with the population.
 /// </summary>
-public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
+/// <remarks>
+/// Patients are analysed in batches on <see cref="EvaluationOptions.Workers"/> threads and yielded in stream order, so
+/// the rows are the serial ones in the same order.
+/// </remarks>
+public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog, IOptions<EvaluationOptions> options)
 {
+    /// <summary>Patients analysed together in parallel: large enough to share the work, small enough to keep the stream flowing.</summary>
+    private const int ParallelBatch = 256;
+
     public async Task<(CareGapSelection? Selection, IReadOnlyList<FhirIssue> Issues)> SelectAsync(CareGapQuery query, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(query);
@@ -79,6 +87,9 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
         var evaluator = new MeasureEvaluator(selection.Repository, records);
         var analyzer = new GapAnalyzer(evaluator, records);
         var total = progress is null ? 0 : selection.PatientIds?.Count ?? await store.CountPatientFactsAsync(cancellationToken);
+        var workers = options.Value.EffectiveWorkers;
+        var batchSize = workers > 1 ? ParallelBatch : 1;
+        var batch = new List<PatientFacts>(batchSize);
         long read = 0;
         await foreach (var facts in store.StreamPatientFactsAsync(selection.PatientIds, cancellationToken))
         {
@@ -88,6 +99,44 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
                 continue;
             }
 
+            batch.Add(facts);
+            if (batch.Count == batchSize)
+            {
+                foreach (var gaps in Analyze(batch))
+                {
+                    yield return gaps;
+                }
+
+                batch.Clear();
+            }
+        }
+
+        foreach (var gaps in Analyze(batch))
+        {
+            yield return gaps;
+        }
+
+        // Each patient's gaps land in its own slot, so the order is the stream's whatever thread finished first.
+        IEnumerable<PatientGaps> Analyze(List<PatientFacts> patients)
+        {
+            var found = new PatientGaps?[patients.Count];
+            if (patients.Count == 1 || workers <= 1)
+            {
+                for (var i = 0; i < patients.Count; i++)
+                {
+                    found[i] = AnalyzeOne(patients[i]);
+                }
+            }
+            else
+            {
+                Parallel.For(0, patients.Count, new ParallelOptions { MaxDegreeOfParallelism = workers, CancellationToken = cancellationToken }, i => found[i] = AnalyzeOne(patients[i]));
+            }
+
+            return found.OfType<PatientGaps>();
+        }
+
+        PatientGaps? AnalyzeOne(PatientFacts facts)
+        {
             var results = evaluator.EvaluateAll(selection.Measures, facts, query.Period);
             var gaps = new List<(MeasureDefinition, CareGap)>();
             for (var i = 0; i < selection.Measures.Count; i++)
@@ -99,10 +148,7 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
                 }
             }
 
-            if (gaps.Count > 0)
-            {
-                yield return new PatientGaps(facts, gaps);
-            }
+            return gaps.Count > 0 ? new PatientGaps(facts, gaps) : null;
         }
     }
 
