@@ -109,7 +109,8 @@ public sealed class AsyncJobTests(ITestOutputHelper output) : IDisposable
         await AssertCodeAsync(await other.DeleteAsync(status), HttpStatusCode.NotFound, "MEV-JOB-001");
         Assert.Equal(HttpStatusCode.Accepted, (await AsyncPoller.PollOnceAsync(admin, status)).Status);
 
-        // R4 async.html: DELETE on the status URL answers 202; afterwards the status URL answers 404 with an OperationOutcome.
+        // R4 async.html, delete request: 202 Accepted, later requests to the status URL 404 with an OperationOutcome
+        // (from memory: verify; the same rule in the bulk-data derived Australian Health Connect IG, BatchRequestDelete).
         await AssertCodeAsync(await starter.DeleteAsync(status), HttpStatusCode.Accepted, "MEV-JOB-004");
         await AssertCodeAsync(await starter.GetAsync(status), HttpStatusCode.NotFound, "MEV-JOB-003");
         await AssertCodeAsync(await starter.DeleteAsync(status), HttpStatusCode.NotFound, "MEV-JOB-003");

@@ -95,12 +95,20 @@ public sealed partial class JobWorker(
     {
         while (true)
         {
-            foreach (var job in await store.ListAsync(JobState.Queued, 16, cancellationToken))
+            try
             {
-                if (await store.TryStartAsync(job.Id, cancellationToken))
+                foreach (var job in await store.ListAsync(JobState.Queued, 16, cancellationToken))
                 {
-                    return job with { State = JobState.Running, Attempts = job.Attempts + 1 };
+                    if (await store.TryStartAsync(job.Id, cancellationToken))
+                    {
+                        return job with { State = JobState.Running, Attempts = job.Attempts + 1 };
+                    }
                 }
+            }
+            catch (DbException e)
+            {
+                // The database is away for a moment (a PostgreSQL restart): the worker waits and looks again, it does not stop the host.
+                LogStoreUnavailable(e.GetType().Name);
             }
 
             await _wake.WaitAsync(settings.PollInterval, cancellationToken);
@@ -122,8 +130,7 @@ public sealed partial class JobWorker(
             var result = await Task.Run(() => runner.RunAsync(job, caller, progress, cancel.Token), cancel.Token);
             await saving.CancelAsync();
             await saver;
-            var finished = await store.TryFinishAsync(job.Id, result.Status < 400 ? JobState.Completed : JobState.Failed, result, CancellationToken.None);
-            LogFinished(job.Id, result.Status, finished);
+            await FinishAsync(job.Id, result.Status < 400 ? JobState.Completed : JobState.Failed, result);
         }
         catch (OperationCanceledException) when (cancel.IsCancellationRequested)
         {
@@ -135,7 +142,7 @@ public sealed partial class JobWorker(
             // Logged by type only: messages can carry data. The caller gets the 500 the synchronous request would have given.
             LogFailed(job.Id, e.GetType().Name);
             var outcome = FhirResult.Outcome([new FhirIssue(ErrorCatalogue.Unexpected, $"job {job.Id} failed unexpectedly; quote this job id")]);
-            await store.TryFinishAsync(job.Id, JobState.Failed, await runner.RenderAsync(outcome, FhirFormat.Default, JobCaller.Parse(job.Claims).ToPrincipal()), CancellationToken.None);
+            await FinishAsync(job.Id, JobState.Failed, await runner.RenderAsync(outcome, FhirFormat.Default, JobCaller.Parse(job.Claims).ToPrincipal()));
         }
         finally
         {
@@ -143,6 +150,19 @@ public sealed partial class JobWorker(
             await saver;
             _running.TryRemove(job.Id, out _);
             slots.Release();
+        }
+    }
+
+    /// <summary>Stores the answer; if the database refuses, the job stays running in the store and runs again after the next start.</summary>
+    private async Task FinishAsync(string id, JobState state, JobResult result)
+    {
+        try
+        {
+            LogFinished(id, result.Status, await store.TryFinishAsync(id, state, result, CancellationToken.None));
+        }
+        catch (DbException e)
+        {
+            LogStoreUnavailable(e.GetType().Name);
         }
     }
 
@@ -194,6 +214,9 @@ public sealed partial class JobWorker(
 
     [LoggerMessage(Level = LogLevel.Error, Message = "Job {JobId} marked failed after {Attempts} interrupted attempts")]
     private partial void LogAbandoned(string jobId, int attempts);
+
+    [LoggerMessage(Level = LogLevel.Warning, Message = "Job table not reachable ({ExceptionType}); trying again")]
+    private partial void LogStoreUnavailable(string exceptionType);
 
     [LoggerMessage(Level = LogLevel.Warning, Message = "Progress of job {JobId} not saved ({ExceptionType})")]
     private partial void LogProgressNotSaved(string jobId, string exceptionType);
