@@ -1,9 +1,11 @@
+using System.Security.Claims;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Ingest;
 using MeasureEval.Api.Jobs;
+using MeasureEval.Core.Security;
 using MeasureEval.Engine.Gaps;
 using MeasureEval.Engine.Reports;
 using Microsoft.AspNetCore.Builder;
@@ -38,7 +40,7 @@ public static class CareGapEndpoints
         return app;
     }
 
-    public static async Task<FhirResult> GetCareGapsAsync(HttpRequest request, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken)
+    public static async Task<FhirResult> GetCareGapsAsync(HttpRequest request, ClaimsPrincipal user, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
         var issues = new List<FhirIssue>();
@@ -49,11 +51,11 @@ public static class CareGapEndpoints
 
         return AsyncRequests.Wanted(request)
             ? await AsyncRequests.StartAsync(request, JobKinds.CareGaps, CareGapJobParameters.From(query!, FhirFormat.Of(request.HttpContext)), cancellationToken)
-            : await CareGapsAsync(query!, service, reports, time, cancellationToken);
+            : await CareGapsAsync(query!, CallerScope.Of(user), service, reports, time, cancellationToken);
     }
 
     public static async Task<FhirResult> PostCareGapsAsync(
-        HttpRequest request, CareGapService service, MeasureReportBuilder reports, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+        HttpRequest request, ClaimsPrincipal user, CareGapService service, MeasureReportBuilder reports, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(options);
@@ -76,10 +78,10 @@ public static class CareGapEndpoints
 
         return AsyncRequests.Wanted(request)
             ? await AsyncRequests.StartAsync(request, JobKinds.CareGaps, CareGapJobParameters.From(query!, FhirFormat.Of(request.HttpContext)), cancellationToken)
-            : await CareGapsAsync(query!, service, reports, time, cancellationToken);
+            : await CareGapsAsync(query!, CallerScope.Of(user), service, reports, time, cancellationToken);
     }
 
-    public static async Task<Results<PushStreamHttpResult, FhirResult>> ExportAsync(HttpRequest request, CareGapService service, TimeProvider time, CancellationToken cancellationToken)
+    public static async Task<Results<PushStreamHttpResult, FhirResult>> ExportAsync(HttpRequest request, ClaimsPrincipal user, CareGapService service, TimeProvider time, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(service);
@@ -94,7 +96,7 @@ public static class CareGapEndpoints
             return await AsyncRequests.StartAsync(request, JobKinds.CareGapsExport, CareGapJobParameters.From(query!, FhirFormat.Of(request.HttpContext)), cancellationToken);
         }
 
-        var (selection, problems) = await service.SelectAsync(query!, cancellationToken);
+        var (selection, problems) = await service.SelectAsync(query!, CallerScope.Of(user), cancellationToken);
         if (selection is null)
         {
             return FhirResult.Outcome(problems);
@@ -126,15 +128,16 @@ public static class CareGapEndpoints
         }
     }
 
-    private static Task<FhirResult> CareGapsAsync(CareGapQuery query, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken) =>
-        CareGapsAsync(query, service, reports, time, progress: null, cancellationToken);
+    private static Task<FhirResult> CareGapsAsync(CareGapQuery query, DataScope scope, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken) =>
+        CareGapsAsync(query, scope, service, reports, time, progress: null, cancellationToken);
 
     /// <summary>$care-gaps for a parsed request: what the GET and POST handlers and an asynchronous job answer.</summary>
     internal static async Task<FhirResult> CareGapsAsync(
-        CareGapQuery query, CareGapService service, MeasureReportBuilder reports, TimeProvider time, IProgress<Engine.EvaluationProgress>? progress, CancellationToken cancellationToken)
+        CareGapQuery query, DataScope scope, CareGapService service, MeasureReportBuilder reports, TimeProvider time, IProgress<Engine.EvaluationProgress>? progress,
+        CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(service);
-        var (selection, problems) = await service.SelectAsync(query, cancellationToken);
+        var (selection, problems) = await service.SelectAsync(query, scope, cancellationToken);
         if (selection is null)
         {
             return FhirResult.Outcome(problems);

@@ -30,6 +30,8 @@ public static class AsyncRequests
         var services = request.HttpContext.RequestServices;
         var time = services.GetRequiredService<TimeProvider>();
         var id = Guid.CreateVersion7(time.GetUtcNow()).ToString("N");
+        // Refused now, as the synchronous request would be, if the caller has no data scope.
+        _ = Security.CallerScope.Of(request.HttpContext.User);
         var caller = JobCaller.Of(request.HttpContext.User);
         await services.GetRequiredService<IJobStore>().CreateAsync(id, kind, JsonSerializer.Serialize(parameters, JobKinds.Json), caller.ToJson(), cancellationToken);
         services.GetRequiredService<JobWorker>().Wake();

@@ -8,7 +8,7 @@ namespace MeasureEval.Api.Jobs;
 /// Who started a job, as stored with it: the claims that decide what a caller may see (sub, role, payer). The job runs
 /// as <see cref="ToPrincipal"/>, so it has the scope of the caller who started it, not of the worker.
 /// </summary>
-public sealed record JobCaller(string? Sub, IReadOnlyList<string> Roles, string? Payer)
+public sealed record JobCaller(string? Sub, IReadOnlyList<string> Roles, IReadOnlyList<string> Payers)
 {
     private const string SubClaim = "sub";
 
@@ -18,7 +18,8 @@ public sealed record JobCaller(string? Sub, IReadOnlyList<string> Roles, string?
         return new JobCaller(
             user.FindFirst(SubClaim)?.Value,
             [.. user.FindAll(AccessPolicies.RoleClaim).Select(c => c.Value).Distinct(StringComparer.Ordinal)],
-            user.FindFirst(AccessPolicies.PayerClaim)?.Value);
+            // Every payer claim, as given: a token CallerScope cannot scope (several payers) stays unscopable, never widened.
+            [.. user.FindAll(AccessPolicies.PayerClaim).Select(c => c.Value)]);
     }
 
     public static JobCaller Parse(string json) => JsonSerializer.Deserialize<JobCaller>(json) ?? throw new JsonException("a job's caller is null");
@@ -35,11 +36,7 @@ public sealed record JobCaller(string? Sub, IReadOnlyList<string> Roles, string?
         }
 
         claims.AddRange(Roles.Select(r => new Claim(AccessPolicies.RoleClaim, r)));
-        if (Payer is not null)
-        {
-            claims.Add(new Claim(AccessPolicies.PayerClaim, Payer));
-        }
-
+        claims.AddRange(Payers.Select(p => new Claim(AccessPolicies.PayerClaim, p)));
         return new ClaimsPrincipal(new ClaimsIdentity(claims, "async-job", SubClaim, AccessPolicies.RoleClaim));
     }
 

@@ -4,6 +4,7 @@ using System.Text.Json;
 using MeasureEval.Api.CareGaps;
 using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Measures;
+using MeasureEval.Api.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine.Reports;
 using Microsoft.AspNetCore.Http;
@@ -21,21 +22,23 @@ public sealed class JobRunner(
     public async Task<JobResult> RunAsync(JobRecord job, ClaimsPrincipal caller, IProgress<Engine.EvaluationProgress> progress, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(job);
+        // The scope of the caller who started the job, rebuilt from the stored claims (a payer sees its members only).
+        var scope = CallerScope.Of(caller);
         switch (job.Kind)
         {
             case JobKinds.EvaluateMeasure:
             {
                 var p = Read<EvaluateJobParameters>(job);
                 var result = p.MeasureId is { } id
-                    ? await MeasureEndpoints.EvaluateOneAsync(id, p.ToParameters(), catalog, evaluation, progress, cancellationToken)
-                    : await MeasureEndpoints.EvaluateMeasuresAsync(p.ToParameters(), catalog, evaluation, progress, cancellationToken);
+                    ? await MeasureEndpoints.EvaluateOneAsync(id, p.ToParameters(), scope, catalog, evaluation, progress, cancellationToken)
+                    : await MeasureEndpoints.EvaluateMeasuresAsync(p.ToParameters(), scope, catalog, evaluation, progress, cancellationToken);
                 return await RenderAsync(result, new FhirFormat(p.MediaType, p.Pretty), caller);
             }
 
             case JobKinds.CareGaps:
             {
                 var p = Read<CareGapJobParameters>(job);
-                var result = await CareGapEndpoints.CareGapsAsync(p.ToQuery(), gaps, reports, time, progress, cancellationToken);
+                var result = await CareGapEndpoints.CareGapsAsync(p.ToQuery(), scope, gaps, reports, time, progress, cancellationToken);
                 return await RenderAsync(result, new FhirFormat(p.MediaType, p.Pretty), caller);
             }
 
@@ -43,7 +46,7 @@ public sealed class JobRunner(
             {
                 var p = Read<CareGapJobParameters>(job);
                 var query = p.ToQuery();
-                var (selection, problems) = await gaps.SelectAsync(query, cancellationToken);
+                var (selection, problems) = await gaps.SelectAsync(query, scope, cancellationToken);
                 if (selection is null)
                 {
                     return await RenderAsync(FhirResult.Outcome(problems), new FhirFormat(p.MediaType, p.Pretty), caller);

@@ -1,4 +1,5 @@
 using System.Buffers;
+using System.Security.Claims;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Errors;
@@ -6,6 +7,7 @@ using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Ingest;
 using MeasureEval.Api.Jobs;
 using MeasureEval.Core.Fhir;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Reports;
@@ -94,7 +96,7 @@ public static class MeasureEndpoints
 
         return repository.TryGetLibrary(id, out var library)
             ? FhirResult.Of(200, MeasureResources.ToLibrary(library))
-            : await Resources.ResourceEndpoints.ReadAsync("Library", id, store, cancellationToken);
+            : await Resources.ResourceEndpoints.ReadInScopeAsync("Library", id, DataScope.Unrestricted, store, cancellationToken);
     }
 
     public static async Task<FhirResult> PutMeasureAsync(string id, HttpRequest request, MeasureCatalog catalog, IOptions<IngestOptions> options, CancellationToken cancellationToken)
@@ -153,7 +155,7 @@ public static class MeasureEndpoints
         return issues.Count > 0 ? FhirResult.Outcome(ToIssues(issues, fhirRoot: "ValueSet")) : FhirResult.Of(created ? 201 : 200, valueSet);
     }
 
-    public static async Task<FhirResult> EvaluateGetAsync(string id, HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, CancellationToken cancellationToken)
+    public static async Task<FhirResult> EvaluateGetAsync(string id, HttpRequest request, ClaimsPrincipal user, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
         var issues = new List<FhirIssue>();
@@ -167,10 +169,10 @@ public static class MeasureEndpoints
             return await AsyncRequests.StartAsync(request, JobKinds.EvaluateMeasure, EvaluateJobParameters.From(id, parameters!, FhirFormat.Of(request.HttpContext)), cancellationToken);
         }
 
-        return await EvaluateOneAsync(id, parameters!, catalog, service, cancellationToken);
+        return await EvaluateOneAsync(id, parameters!, CallerScope.Of(user), catalog, service, cancellationToken);
     }
 
-    public static async Task<FhirResult> EvaluatePostAsync(string id, HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+    public static async Task<FhirResult> EvaluatePostAsync(string id, HttpRequest request, ClaimsPrincipal user, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
     {
         var (parameters, error) = await ReadParametersAsync(request, time, options, cancellationToken);
         if (error is null && AsyncRequests.Wanted(request))
@@ -178,10 +180,10 @@ public static class MeasureEndpoints
             return await AsyncRequests.StartAsync(request, JobKinds.EvaluateMeasure, EvaluateJobParameters.From(id, parameters!, FhirFormat.Of(request.HttpContext)), cancellationToken);
         }
 
-        return error ?? await EvaluateOneAsync(id, parameters!, catalog, service, cancellationToken);
+        return error ?? await EvaluateOneAsync(id, parameters!, CallerScope.Of(user), catalog, service, cancellationToken);
     }
 
-    public static async Task<FhirResult> EvaluateManyAsync(HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+    public static async Task<FhirResult> EvaluateManyAsync(HttpRequest request, ClaimsPrincipal user, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(catalog);
         ArgumentNullException.ThrowIfNull(service);
@@ -201,12 +203,13 @@ public static class MeasureEndpoints
             return await AsyncRequests.StartAsync(request, JobKinds.EvaluateMeasure, EvaluateJobParameters.From(null, parameters, FhirFormat.Of(request.HttpContext)), cancellationToken);
         }
 
-        return await EvaluateMeasuresAsync(parameters, catalog, service, progress: null, cancellationToken);
+        return await EvaluateMeasuresAsync(parameters, CallerScope.Of(user), catalog, service, progress: null, cancellationToken);
     }
 
     /// <summary>The type-level operation for parsed parameters: what the POST handler and an asynchronous job answer.</summary>
     internal static async Task<FhirResult> EvaluateMeasuresAsync(
-        EvaluateParameters parameters, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress, CancellationToken cancellationToken)
+        EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress,
+        CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(parameters);
         ArgumentNullException.ThrowIfNull(catalog);
@@ -231,7 +234,7 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(issues);
         }
 
-        var (reports, failure) = await service.EvaluateAsync(repository, measures, parameters, progress, cancellationToken);
+        var (reports, failure) = await service.EvaluateAsync(repository, measures, parameters, scope, progress, cancellationToken);
         if (failure is not null)
         {
             return FhirResult.Outcome(failure);
@@ -246,12 +249,13 @@ public static class MeasureEndpoints
         return FhirResult.Of(200, bundle);
     }
 
-    private static Task<FhirResult> EvaluateOneAsync(string id, EvaluateParameters parameters, MeasureCatalog catalog, MeasureEvaluationService service, CancellationToken cancellationToken) =>
-        EvaluateOneAsync(id, parameters, catalog, service, progress: null, cancellationToken);
+    private static Task<FhirResult> EvaluateOneAsync(string id, EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, CancellationToken cancellationToken) =>
+        EvaluateOneAsync(id, parameters, scope, catalog, service, progress: null, cancellationToken);
 
     /// <summary>One measure for parsed parameters: what the GET and POST handlers and an asynchronous job answer.</summary>
     internal static async Task<FhirResult> EvaluateOneAsync(
-        string id, EvaluateParameters parameters, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress, CancellationToken cancellationToken)
+        string id, EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress,
+        CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(catalog);
         ArgumentNullException.ThrowIfNull(service);
@@ -261,7 +265,7 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(new FhirIssue(MeasureErrors.UnknownMeasure, $"no measure '{id}' is loaded"));
         }
 
-        var (reports, failure) = await service.EvaluateAsync(repository, [measure], parameters, progress, cancellationToken);
+        var (reports, failure) = await service.EvaluateAsync(repository, [measure], parameters, scope, progress, cancellationToken);
         return failure is not null ? FhirResult.Outcome(failure) : FhirResult.Of(200, reports[0]);
     }
 

@@ -3,6 +3,7 @@ using MeasureEval.Api.Errors;
 using MeasureEval.Cluster.Hosting;
 using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Reports;
@@ -11,20 +12,26 @@ using Microsoft.Extensions.Options;
 namespace MeasureEval.Api.Measures;
 
 /// <summary>Runs $evaluate-measure: picks the patients (one, a Group's members, everyone), streams them once for all measures.</summary>
-/// <remarks>In cluster mode (<see cref="ClusterEvaluation"/> registered) a population is evaluated partitioned over the nodes; the reports are the same.</remarks>
-/// <remarks>A single-node population is evaluated on <see cref="EvaluationOptions.Workers"/> threads; the reports equal the serial ones.</remarks>
+/// <remarks>
+/// In cluster mode (<see cref="ClusterEvaluation"/> registered) a population is evaluated partitioned over the nodes; the reports are the same.
+/// Every patient comes from the store within the caller's scope during the measurement period: a payer's report counts
+/// its members only, and another payer's patient or Group answers as unknown.
+/// A single-node population is evaluated on <see cref="EvaluationOptions.Workers"/> threads; the reports equal the serial ones.
+/// </remarks>
 public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time, IOptions<EvaluationOptions> options, ClusterEvaluation? cluster = null)
 {
     public Task<(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error)> EvaluateAsync(
-        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, CancellationToken cancellationToken) =>
-        EvaluateAsync(repository, measures, parameters, progress: null, cancellationToken);
+        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, DataScope scope, CancellationToken cancellationToken) =>
+        EvaluateAsync(repository, measures, parameters, scope, progress: null, cancellationToken);
 
     /// <summary>As above, telling <paramref name="progress"/> how many patients are done (asynchronous jobs).</summary>
     public async Task<(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error)> EvaluateAsync(
-        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, IProgress<EvaluationProgress>? progress,
-        CancellationToken cancellationToken)
+        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, DataScope scope,
+        IProgress<EvaluationProgress>? progress, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(parameters);
+        ArgumentNullException.ThrowIfNull(scope);
+        var during = scope.During(parameters.Period.Start, parameters.Period.End);
         var builder = new MeasureReportBuilder(time);
         var evaluator = new MeasureEvaluator(repository, new StoreRecordSource(store));
         IReadOnlyCollection<string>? patientIds = null;
@@ -34,7 +41,7 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
         }
         else if (parameters.SubjectType == "Group")
         {
-            var members = await GroupMembersAsync(parameters.SubjectId!, cancellationToken);
+            var members = await GroupMembersAsync(parameters.SubjectId!, scope, cancellationToken);
             if (members is null)
             {
                 return ([], new FhirIssue(MeasureErrors.UnknownSubject, $"Group/{parameters.SubjectId} is not stored", "subject"));
@@ -45,7 +52,7 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
 
         if (parameters.ReportKind == ReportKind.Subject)
         {
-            var facts = await store.GetPatientFactsAsync(parameters.SubjectId!, cancellationToken);
+            var facts = await store.GetPatientFactsAsync(parameters.SubjectId!, during, cancellationToken);
             if (facts is null)
             {
                 return ([], new FhirIssue(MeasureErrors.UnknownSubject, $"nothing is stored for Patient/{parameters.SubjectId}", "subject"));
@@ -60,18 +67,28 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
         IReadOnlyList<PopulationSummary> summaries;
         if (cluster is not null)
         {
-            summaries = (await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects)).Summaries;
+            summaries = (await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects, scope)).Summaries;
         }
         else
         {
-            // The total counts every patient streamed; the practitioner filter drops some of them after the count.
-            var total = progress is null ? 0 : patientIds?.Count ?? await store.CountPatientFactsAsync(cancellationToken);
+            var total = progress is null ? 0 : await PatientTotalAsync(store, patientIds, scope, cancellationToken);
             summaries = await new PopulationEvaluator(evaluator, options.Value.EffectiveWorkers).SummarizeAsync(
-                Filter(store.StreamPatientFactsAsync(patientIds, cancellationToken), parameters.PractitionerReference, progress, total, cancellationToken),
+                Filter(store.StreamPatientFactsAsync(patientIds, during, cancellationToken), parameters.PractitionerReference, progress, total, cancellationToken),
                 measures, parameters.Period, keepSubjects, cancellationToken);
         }
 
         return ([.. summaries.Select(s => parameters.ReportKind == ReportKind.SubjectList ? builder.SubjectList(s) : builder.Summary(s))], null);
+    }
+
+    /// <summary>
+    /// The patients a stream will read, for progress: the ids asked for, else every index entry; 0 (unknown) for a
+    /// payer, whose members are a subset the store does not count ahead.
+    /// </summary>
+    internal static async Task<long> PatientTotalAsync(IResourceStore store, IReadOnlyCollection<string>? patientIds, DataScope scope, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(store);
+        ArgumentNullException.ThrowIfNull(scope);
+        return patientIds?.Count ?? (scope.IsUnrestricted ? await store.CountPatientFactsAsync(cancellationToken) : 0);
     }
 
     /// <summary>The practitioner's panel; progress counts every patient read (filtered out or not), so it reaches the total.</summary>
@@ -91,9 +108,9 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
     }
 
     /// <summary>The patient ids among the Group's members (other member types are not patients), or null when no such Group is stored.</summary>
-    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, CancellationToken cancellationToken)
+    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, DataScope scope, CancellationToken cancellationToken)
     {
-        var stored = await store.ReadAsync("Group", id, cancellationToken);
+        var stored = await store.ReadAsync("Group", id, scope, cancellationToken);
         if (stored is not { Deleted: false, Json: { } json })
         {
             return null;

@@ -33,7 +33,7 @@ internal sealed partial class PartitionGrain(
         var batch = new List<PatientFacts>(BatchSize);
         if (ids is not { Count: 0 })
         {
-            await foreach (var patient in store.StreamPatientFactsAsync(ids, cancellationToken))
+            await foreach (var patient in store.StreamPatientFactsAsync(ids, request.Scope, cancellationToken))
             {
                 if (PatientPartitioner.PartitionOf(patient.PatientId, request.Partitions) != partition
                     || (request.Practitioner is not null && patient.Demographics?.GeneralPractitioner != request.Practitioner))

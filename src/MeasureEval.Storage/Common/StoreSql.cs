@@ -66,4 +66,40 @@ internal static class StoreSql
             ORDER BY patient_id, type, id) r
         JOIN resource_versions v ON v.type = r.type AND v.id = r.id AND v.version = r.version
         """;
+
+    /// <summary>(source_type, source_id).</summary>
+    public const string DeletePayerMembers = "DELETE FROM payer_members WHERE source_type = @p0 AND source_id = @p1";
+
+    /// <summary>(payer_id, patient_id, source_type, source_id, period_start, period_end).</summary>
+    public const string InsertPayerMember = """
+        INSERT INTO payer_members (payer_id, patient_id, source_type, source_id, period_start, period_end)
+        VALUES (@p0, @p1, @p2, @p3, @p4, @p5)
+        """;
+
+    /// <summary>(type, id).</summary>
+    public const string DeletePayerResources = "DELETE FROM payer_resources WHERE type = @p0 AND id = @p1";
+
+    /// <summary>(type, id, payer_id).</summary>
+    public const string InsertPayerResource = "INSERT INTO payer_resources (type, id, payer_id) VALUES (@p0, @p1, @p2)";
+
+    /// <summary>(payer_id, patient_id) → a row when the patient is the payer's member in any period.</summary>
+    public const string IsMember = "SELECT 1 FROM payer_members WHERE payer_id = @p0 AND patient_id = @p1 LIMIT 1";
+
+    /// <summary>(payer_id, patient_id, period start, period end) → a row when a membership overlaps the period.</summary>
+    public const string IsMemberDuring = """
+        SELECT 1 FROM payer_members WHERE payer_id = @p0 AND patient_id = @p1
+            AND (period_start IS NULL OR period_start <= @p3) AND (period_end IS NULL OR period_end >= @p2) LIMIT 1
+        """;
+
+    /// <summary>(type, id, version) → the newest body at or before that version (what a deletion deleted).</summary>
+    public const string LastBodyAtOrBefore = """
+        SELECT json FROM resource_versions WHERE type = @p0 AND id = @p1 AND version <= @p2 AND json IS NOT NULL
+        ORDER BY version DESC LIMIT 1
+        """;
+
+    public const string CurrentOwnedResources = """
+        SELECT r.type, r.id, v.json FROM resources r
+        JOIN resource_versions v ON v.type = r.type AND v.id = r.id AND v.version = r.version
+        WHERE r.type IN ('Coverage', 'Group') AND r.deleted = FALSE AND r.version > 0
+        """;
 }
