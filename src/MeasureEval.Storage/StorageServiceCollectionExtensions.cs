@@ -1,5 +1,6 @@
 using MeasureEval.Core.Audit;
 using MeasureEval.Core.Storage;
+using MeasureEval.Storage.Common;
 using MeasureEval.Storage.Postgres;
 using MeasureEval.Storage.Sqlite;
 using Microsoft.Data.Sqlite;
@@ -23,14 +24,17 @@ public static class StorageServiceCollectionExtensions
         services.AddOptions<StorageOptions>().BindConfiguration(StorageOptions.SectionName).ValidateOnStart();
         services.TryAddEnumerable(ServiceDescriptor.Singleton<IValidateOptions<StorageOptions>, StorageOptionsValidator>());
         services.TryAddSingleton(TimeProvider.System);
-        services.TryAddSingleton<IResourceStore>(CreateStore);
-        // Both stores keep the audit trail in their own tables, on the same connections as the resources.
-        services.TryAddSingleton<IAuditStore>(s => (IAuditStore)s.GetRequiredService<IResourceStore>());
+        services.TryAddSingleton<SqlResourceStore>(CreateStore);
+        services.TryAddSingleton<IResourceStore>(sp => sp.GetRequiredService<SqlResourceStore>());
+        services.TryAddSingleton<IJobStore>(sp => new SqlJobStore(sp.GetRequiredService<SqlResourceStore>()));
+        // Both stores keep the audit trail in their own tables, on the same connections as the resources (and stay the
+        // audit store when a host decorates IResourceStore).
+        services.TryAddSingleton<IAuditStore>(sp => sp.GetRequiredService<SqlResourceStore>());
         services.AddHostedService<StorageInitializer>();
         return services;
     }
 
-    private static IResourceStore CreateStore(IServiceProvider services)
+    private static SqlResourceStore CreateStore(IServiceProvider services)
     {
         var options = services.GetRequiredService<IOptions<StorageOptions>>().Value;
         var timeProvider = services.GetRequiredService<TimeProvider>();

@@ -35,6 +35,9 @@ public static class AuditRoutes
         ["care-gaps-export"] = new("operation", "care-gaps-export", "E", true),
         ["GetReportIndex"] = new("operation", "report-index", "R", true),
         ["GetMeasureReport"] = new("operation", "measure-report", "R", true),
+        // Polling a job returns the finished operation's answer (stored bytes: the patients it names are not listed).
+        ["job-status"] = new("operation", "job-status", "R", true),
+        ["job-cancel"] = new("operation", "job-cancel", "D", false),
         [AuditEventEndpoints.SearchName] = new("search-type", null, "R", true),
         [AuditEventEndpoints.ReadName] = new("read", null, "R", true),
     };

@@ -56,20 +56,23 @@ public sealed class EvaluationBudgetFilter(IOptions<LimitsOptions> options, Time
         {
             var result = await next(context);
             // A streamed answer (the export) evaluates while it writes, after this filter has returned.
-            return result is IResult streamed and not FhirResult ? new BudgetedResult(streamed, timer, () => Exceeded(budget)) : result;
+            return result is IResult streamed and not FhirResult ? new BudgetedResult(streamed, timer, () => Exceeded(budget, name)) : result;
         }
         catch (OperationCanceledException) when (timer.IsCancellationRequested && !http.Response.HasStarted)
         {
-            return Exceeded(budget);
+            return Exceeded(budget, name);
         }
     }
 
-    private static RetryAfterResult Exceeded(TimeSpan budget)
+    private static RetryAfterResult Exceeded(TimeSpan budget, string routeName)
     {
+        // Report pages have no asynchronous form; the FHIR operations and the export do.
+        var advice = routeName.StartsWith("Get", StringComparison.Ordinal)
+            ? "narrow it (a shorter period, interval=quarter over fewer quarters) or use the FHIR operations with 'Prefer: respond-async'."
+            : "send the request again with the header 'Prefer: respond-async' to run it in the background, or narrow it (subject, practitioner, measureId).";
         var issue = new FhirIssue(
             ErrorCatalogue.TimeBudgetExceeded,
-            $"The evaluation took longer than {budget.TotalSeconds.ToString(CultureInfo.InvariantCulture)} s (Limits:EvaluationTimeBudget) and was cancelled; "
-            + "send the request again with the header 'Prefer: respond-async' to run it in the background, or narrow it (subject, practitioner, measureId).");
+            $"The evaluation took longer than {budget.TotalSeconds.ToString(CultureInfo.InvariantCulture)} s (Limits:EvaluationTimeBudget) and was cancelled; " + advice);
         return new RetryAfterResult(FhirResult.Outcome(issue.Code.HttpStatus, [issue]), RetryAfterSeconds);
     }
 }

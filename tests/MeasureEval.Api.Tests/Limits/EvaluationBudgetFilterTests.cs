@@ -33,6 +33,8 @@ public sealed class StallingStore(IResourceStore inner) : IResourceStore
 
     public System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, DataScope scope, CancellationToken cancellationToken) => inner.GetPatientFactsAsync(patientId, scope, cancellationToken);
 
+    public System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken) => inner.CountPatientFactsAsync(cancellationToken);
+
     public async IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(
         IReadOnlyCollection<string>? patientIds, DataScope scope, [System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellationToken)
     {
