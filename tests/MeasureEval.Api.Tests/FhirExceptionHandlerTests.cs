@@ -56,5 +56,8 @@ public sealed class FhirExceptionHandlerTests(ApiFactory factory) : IClassFixtur
 
         public IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, CancellationToken cancellationToken) =>
             inner.StreamPatientFactsAsync(patientIds, cancellationToken);
+
+        public IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(int partition, int partitionCount, CancellationToken cancellationToken) =>
+            inner.StreamPartitionFactsAsync(partition, partitionCount, cancellationToken);
     }
 }

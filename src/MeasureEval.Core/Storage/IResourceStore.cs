@@ -40,6 +40,14 @@ public interface IResourceStore
     /// otherwise just those (unknown ids are skipped). Memory does not grow with the population.
     /// </summary>
     IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, CancellationToken cancellationToken);
+
+    /// <summary>
+    /// Streams the index entries of one patient partition (<see cref="Partitions.PatientPartitioner.PartitionOf"/> =
+    /// <paramref name="partition"/>) in ascending patient id order, reading only that partition's rows (a range of the
+    /// entries' stored partition key). The partitions 0 … <paramref name="partitionCount"/> − 1 are disjoint and together
+    /// are <see cref="StreamPatientFactsAsync"/> of everyone.
+    /// </summary>
+    IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(int partition, int partitionCount, CancellationToken cancellationToken);
 }
 
 /// <summary>A write unit. Reads and searches through it see its own uncommitted writes (conditional create inside a transaction).</summary>

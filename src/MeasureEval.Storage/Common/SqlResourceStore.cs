@@ -4,6 +4,7 @@ using System.Globalization;
 using System.Runtime.CompilerServices;
 using System.Text;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Partitions;
 using MeasureEval.Core.Storage;
 using Microsoft.Extensions.Logging;
 
@@ -244,6 +245,18 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
             {
                 yield return facts;
             }
+        }
+    }
+
+    public async IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(
+        int partition, int partitionCount, [EnumeratorCancellation] CancellationToken cancellationToken)
+    {
+        var (from, until) = PatientPartitioner.HashRange(partition, partitionCount);
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var command = Command(connection, null, StoreSql.StreamPartition, from, until);
+        await foreach (var facts in ReadEntriesAsync(command, cancellationToken).ConfigureAwait(false))
+        {
+            yield return facts;
         }
     }
 

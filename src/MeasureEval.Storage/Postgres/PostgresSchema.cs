@@ -47,5 +47,25 @@ internal static class PostgresSchema
         """
         CREATE TABLE index_state (format integer NOT NULL);
         """,
+        $"""
+        ALTER TABLE patient_index ADD COLUMN partition_key bigint;
+        {PartitionKeyBackfill}
+        CREATE INDEX patient_index_by_partition ON patient_index (partition_key);
+        """,
     ];
+
+    /// <summary>
+    /// Fills partition_key (32-bit FNV-1a of the patient id's UTF-8 bytes, as <c>PatientPartitioner.Fnv1a</c>) where it is
+    /// missing, one byte per recursive step; the product stays below 2⁶³ before the mask.
+    /// </summary>
+    internal const string PartitionKeyBackfill = """
+        WITH RECURSIVE fnv(patient_id, bytes, i, hash) AS (
+            SELECT patient_id, convert_to(patient_id, 'UTF8'), 0, 2166136261::bigint FROM patient_index WHERE partition_key IS NULL
+            UNION ALL
+            SELECT patient_id, bytes, i + 1, ((hash # get_byte(bytes, i)::bigint) * 16777619) & 4294967295
+            FROM fnv WHERE i < length(bytes)
+        )
+        UPDATE patient_index p SET partition_key = fnv.hash FROM fnv
+        WHERE fnv.patient_id = p.patient_id AND fnv.i = length(fnv.bytes);
+        """;
 }

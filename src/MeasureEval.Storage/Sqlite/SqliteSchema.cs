@@ -47,5 +47,29 @@ internal static class SqliteSchema
         """
         CREATE TABLE index_state (format INTEGER NOT NULL);
         """,
+        $"""
+        ALTER TABLE patient_index ADD COLUMN partition_key INTEGER;
+        {PartitionKeyBackfill}
+        CREATE INDEX patient_index_by_partition ON patient_index (partition_key);
+        """,
     ];
+
+    /// <summary>
+    /// Fills partition_key (32-bit FNV-1a of the patient id's UTF-8 bytes, as <c>PatientPartitioner.Fnv1a</c>) where it is
+    /// missing, in SQL: hex() of a TEXT value is its UTF-8 bytes in hex; a recursive step takes one byte (two hex digits);
+    /// a XOR b is (a | b) − (a &amp; b), since SQLite has no XOR; the product stays below 2⁶³ before the mask.
+    /// </summary>
+    internal const string PartitionKeyBackfill = """
+        WITH RECURSIVE fnv(patient_id, hex, i, hash) AS (
+            SELECT patient_id, hex(patient_id), 1, 2166136261 FROM patient_index WHERE partition_key IS NULL
+            UNION ALL
+            SELECT patient_id, hex, i + 2,
+                (((hash | ((instr('0123456789ABCDEF', substr(hex, i, 1)) - 1) * 16 + instr('0123456789ABCDEF', substr(hex, i + 1, 1)) - 1))
+                  - (hash & ((instr('0123456789ABCDEF', substr(hex, i, 1)) - 1) * 16 + instr('0123456789ABCDEF', substr(hex, i + 1, 1)) - 1)))
+                 * 16777619) & 4294967295
+            FROM fnv WHERE i < length(hex)
+        )
+        UPDATE patient_index SET partition_key = fnv.hash FROM fnv
+        WHERE fnv.patient_id = patient_index.patient_id AND fnv.i > length(fnv.hex);
+        """;
 }
