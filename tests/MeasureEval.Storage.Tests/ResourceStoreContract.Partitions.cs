@@ -56,7 +56,7 @@ public abstract partial class ResourceStoreContract
     }
 
     [SkippableFact]
-    public async Task PartitionKeyBackfill_EntriesWithoutKey_GetThePartitionersHash()
+    public async Task PartitionKeyBackfill_EntriesWithoutKey_GetThePartitionersKey()
     {
         await using var store = await CreateStoreAsync();
         await WriteAllAsync(store, [.. PartitionedIds.Select(p => TestResources.ObservationOf($"obs-{Guid.NewGuid():N}", p))]);
@@ -65,8 +65,8 @@ public abstract partial class ResourceStoreContract
 
         await ExecuteSqlAsync(PartitionKeyBackfill);
 
-        // With 2³¹ − 1 partitions a partition is two or three hash values wide, so finding each patient alone in its own partition
-        // checks the backfilled key against Fnv1a to 31 of its 32 bits.
+        // With 2³¹ − 1 partitions a partition is two or three keys wide, so finding each patient alone in its own partition
+        // checks the backfilled key against PartitionKey to 31 of its 32 bits.
         const int fine = int.MaxValue;
         foreach (var id in PartitionedIds)
         {

@@ -161,13 +161,13 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(issues);
         }
 
-        return await EvaluateOneAsync(id, parameters!, catalog, service, cancellationToken);
+        return await EvaluateOneAsync(id, request.HttpContext.Response, parameters!, catalog, service, cancellationToken);
     }
 
     public static async Task<FhirResult> EvaluatePostAsync(string id, HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
     {
         var (parameters, error) = await ReadParametersAsync(request, time, options, cancellationToken);
-        return error ?? await EvaluateOneAsync(id, parameters!, catalog, service, cancellationToken);
+        return error ?? await EvaluateOneAsync(id, request.HttpContext.Response, parameters!, catalog, service, cancellationToken);
     }
 
     public static async Task<FhirResult> EvaluateManyAsync(HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
@@ -205,12 +205,14 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(issues);
         }
 
-        var (reports, failure) = await service.EvaluateAsync(repository, measures, parameters, cancellationToken);
-        if (failure is not null)
+        var outcome = await service.EvaluateAsync(repository, measures, parameters, cancellationToken);
+        if (outcome.Error is not null)
         {
-            return FhirResult.Outcome(failure);
+            return FhirResult.Outcome(outcome.Error);
         }
 
+        ClusterHeaders.Write(request.HttpContext.Response, outcome.Cluster);
+        var reports = outcome.Reports;
         var bundle = new Bundle { Id = Guid.NewGuid().ToString(), Type = Bundle.BundleType.Collection };
         foreach (var report in reports)
         {
@@ -220,7 +222,8 @@ public static class MeasureEndpoints
         return FhirResult.Of(200, bundle);
     }
 
-    private static async Task<FhirResult> EvaluateOneAsync(string id, EvaluateParameters parameters, MeasureCatalog catalog, MeasureEvaluationService service, CancellationToken cancellationToken)
+    private static async Task<FhirResult> EvaluateOneAsync(
+        string id, HttpResponse response, EvaluateParameters parameters, MeasureCatalog catalog, MeasureEvaluationService service, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(catalog);
         ArgumentNullException.ThrowIfNull(service);
@@ -230,8 +233,14 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(new FhirIssue(MeasureErrors.UnknownMeasure, $"no measure '{id}' is loaded"));
         }
 
-        var (reports, failure) = await service.EvaluateAsync(repository, [measure], parameters, cancellationToken);
-        return failure is not null ? FhirResult.Outcome(failure) : FhirResult.Of(200, reports[0]);
+        var outcome = await service.EvaluateAsync(repository, [measure], parameters, cancellationToken);
+        if (outcome.Error is not null)
+        {
+            return FhirResult.Outcome(outcome.Error);
+        }
+
+        ClusterHeaders.Write(response, outcome.Cluster);
+        return FhirResult.Of(200, outcome.Reports[0]);
     }
 
     private static async Task<(EvaluateParameters? Parameters, FhirResult? Error)> ReadParametersAsync(HttpRequest request, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)

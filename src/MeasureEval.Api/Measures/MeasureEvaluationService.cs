@@ -1,6 +1,7 @@
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Errors;
 using MeasureEval.Cluster.Hosting;
+using MeasureEval.Cluster.Partitions;
 using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Index;
 using MeasureEval.Core.Storage;
@@ -13,8 +14,14 @@ namespace MeasureEval.Api.Measures;
 /// <remarks>In cluster mode (<see cref="ClusterEvaluation"/> registered) a population is evaluated partitioned over the nodes; the reports are the same.</remarks>
 public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time, ClusterEvaluation? cluster = null)
 {
-    public async Task<(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error)> EvaluateAsync(
-        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, CancellationToken cancellationToken)
+    public Task<EvaluationOutcome> EvaluateAsync(
+        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, CancellationToken cancellationToken) =>
+        EvaluateAsync(repository, measures, parameters, null, cancellationToken);
+
+    /// <summary>As above; in cluster mode a population evaluation reports partitions done to <paramref name="progress"/>.</summary>
+    public async Task<EvaluationOutcome> EvaluateAsync(
+        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, IProgress<EvaluationProgress>? progress,
+        CancellationToken cancellationToken)
     {
         var builder = new MeasureReportBuilder(time);
         var evaluator = new MeasureEvaluator(repository, new StoreRecordSource(store));
@@ -28,7 +35,7 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
             var members = await GroupMembersAsync(parameters.SubjectId!, cancellationToken);
             if (members is null)
             {
-                return ([], new FhirIssue(MeasureErrors.UnknownSubject, $"Group/{parameters.SubjectId} is not stored", "subject"));
+                return new([], new FhirIssue(MeasureErrors.UnknownSubject, $"Group/{parameters.SubjectId} is not stored", "subject"));
             }
 
             patientIds = members;
@@ -39,20 +46,28 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
             var facts = await store.GetPatientFactsAsync(parameters.SubjectId!, cancellationToken);
             if (facts is null)
             {
-                return ([], new FhirIssue(MeasureErrors.UnknownSubject, $"nothing is stored for Patient/{parameters.SubjectId}", "subject"));
+                return new([], new FhirIssue(MeasureErrors.UnknownSubject, $"nothing is stored for Patient/{parameters.SubjectId}", "subject"));
             }
 
             var results = evaluator.EvaluateAll(measures, facts, parameters.Period);
-            return ([.. measures.Select((m, i) => builder.Individual(m, parameters.Period, results[i]))], null);
+            return new([.. measures.Select((m, i) => builder.Individual(m, parameters.Period, results[i]))], null);
         }
 
         var keepSubjects = parameters.ReportKind == ReportKind.SubjectList;
-        var summaries = cluster is not null
-            ? (await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects)).Summaries
-            : await new PopulationEvaluator(evaluator).SummarizeAsync(
+        IReadOnlyList<PopulationSummary> summaries;
+        ClusterRunResult? run = null;
+        if (cluster is not null)
+        {
+            (summaries, run) = await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects, progress);
+        }
+        else
+        {
+            summaries = await new PopulationEvaluator(evaluator).SummarizeAsync(
                 Filter(store.StreamPatientFactsAsync(patientIds, cancellationToken), parameters.PractitionerReference, cancellationToken),
                 measures, parameters.Period, keepSubjects, cancellationToken);
-        return ([.. summaries.Select(s => parameters.ReportKind == ReportKind.SubjectList ? builder.SubjectList(s) : builder.Summary(s))], null);
+        }
+
+        return new([.. summaries.Select(s => parameters.ReportKind == ReportKind.SubjectList ? builder.SubjectList(s) : builder.Summary(s))], null, run);
     }
 
     private static async IAsyncEnumerable<PatientFacts> Filter(
@@ -78,5 +93,15 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
 
         var group = FhirJson.Parse<Group>(json);
         return [.. group.Member.Where(m => m.Inactive != true).Select(m => FactExtractor.PatientIdOf(m.Entity)).OfType<string>().Distinct(StringComparer.Ordinal)];
+    }
+}
+
+/// <summary>The reports, or why there are none; <see cref="Cluster"/> says where a cluster run's partitions ran (null on a single node).</summary>
+public sealed record EvaluationOutcome(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error, ClusterRunResult? Cluster = null)
+{
+    public void Deconstruct(out IReadOnlyList<MeasureReport> reports, out FhirIssue? error)
+    {
+        reports = Reports;
+        error = Error;
     }
 }

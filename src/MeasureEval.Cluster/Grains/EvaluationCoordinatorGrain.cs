@@ -17,12 +17,25 @@ internal sealed partial class EvaluationCoordinatorGrain(IOptions<MeasureCluster
 {
     private static readonly TimeSpan RetryDelay = TimeSpan.FromSeconds(1);
     private int _retries;
+    private int _done;
 
-    public async System.Threading.Tasks.Task<ClusterRunResult> RunAsync(ClusterEvaluationRequest request)
+    public async System.Threading.Tasks.Task<ClusterRunResult> RunAsync(ClusterEvaluationRequest request, IPartitionProgressObserver? progress)
     {
         ArgumentNullException.ThrowIfNull(request);
         var job = this.GetPrimaryKey().ToString("N");
-        var results = await System.Threading.Tasks.Task.WhenAll(Enumerable.Range(0, request.Partitions).Select(p => RunPartitionAsync(job, p, request)));
+        var results = await System.Threading.Tasks.Task.WhenAll(Enumerable.Range(0, request.Partitions).Select(async p =>
+        {
+            var result = await RunPartitionAsync(job, p, request);
+
+            // Continuations run one at a time on the grain's scheduler, so the count needs no lock.
+            _done++;
+            if (progress is not null)
+            {
+                await progress.PartitionsDone(_done, request.Partitions);
+            }
+
+            return result;
+        }));
         var merged = request.MeasureIds.Select(id => new MeasurePartial { MeasureId = id, Subjects = request.KeepSubjects ? [] : null }).ToArray();
         foreach (var result in results)
         {

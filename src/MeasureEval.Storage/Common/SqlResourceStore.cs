@@ -251,7 +251,7 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
     public async IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(
         int partition, int partitionCount, [EnumeratorCancellation] CancellationToken cancellationToken)
     {
-        var (from, until) = PatientPartitioner.HashRange(partition, partitionCount);
+        var (from, until) = PatientPartitioner.KeyRange(partition, partitionCount);
         await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
         await using var command = Command(connection, null, StoreSql.StreamPartition, from, until);
         await foreach (var facts in ReadEntriesAsync(command, cancellationToken).ConfigureAwait(false))

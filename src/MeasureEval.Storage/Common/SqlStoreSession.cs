@@ -345,7 +345,7 @@ internal sealed class SqlStoreSession : IStoreSession
 
         var statements = _entries.Select(e => e.Value.IsEmpty
             ? (StoreSql.DeleteIndexEntry, new object?[] { e.Key })
-            : (StoreSql.UpsertIndexEntry, [e.Key, PatientFactsCodec.Encode(e.Value.ToFacts(e.Key)), (long)PatientPartitioner.Fnv1a(e.Key)])).ToList();
+            : (StoreSql.UpsertIndexEntry, [e.Key, PatientFactsCodec.Encode(e.Value.ToFacts(e.Key)), (long)PatientPartitioner.PartitionKey(e.Key)])).ToList();
         await RunAsync(statements, cancellationToken).ConfigureAwait(false);
         _entries.Clear();
         _cachedFacts = 0;

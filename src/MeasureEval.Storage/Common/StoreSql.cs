@@ -42,7 +42,7 @@ internal static class StoreSql
 
     public const string StreamIndex = "SELECT facts FROM patient_index WHERE facts IS NOT NULL ORDER BY patient_id";
 
-    /// <summary>One partition's entries: [@p0, @p1) of partition_key (<c>PatientPartitioner.HashRange</c>), in patient id order.</summary>
+    /// <summary>One partition's entries: [@p0, @p1) of partition_key (<c>PatientPartitioner.KeyRange</c>), in patient id order.</summary>
     public const string StreamPartition = """
         SELECT facts FROM patient_index
         WHERE partition_key >= @p0 AND partition_key < @p1 AND facts IS NOT NULL ORDER BY patient_id

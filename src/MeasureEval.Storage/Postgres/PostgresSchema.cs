@@ -55,8 +55,9 @@ internal static class PostgresSchema
     ];
 
     /// <summary>
-    /// Fills partition_key (32-bit FNV-1a of the patient id's UTF-8 bytes, as <c>PatientPartitioner.Fnv1a</c>) where it is
-    /// missing, one byte per recursive step; the product stays below 2⁶³ before the mask.
+    /// Fills partition_key (<c>PatientPartitioner.PartitionKey</c>: 32-bit FNV-1a of the patient id's UTF-8 bytes, times
+    /// 0x9E3779B9 modulo 2³²) where it is missing, one byte per recursive step. Products stay below 2⁶³ (bigint overflow is
+    /// an error): the last multiplication is split into the constant's 16-bit halves, 0x79B9 = 31161 and 0x9E37 = 40503.
     /// </summary>
     internal const string PartitionKeyBackfill = """
         WITH RECURSIVE fnv(patient_id, bytes, i, hash) AS (
@@ -65,7 +66,7 @@ internal static class PostgresSchema
             SELECT patient_id, bytes, i + 1, ((hash # get_byte(bytes, i)::bigint) * 16777619) & 4294967295
             FROM fnv WHERE i < length(bytes)
         )
-        UPDATE patient_index p SET partition_key = fnv.hash FROM fnv
+        UPDATE patient_index p SET partition_key = (fnv.hash * 31161 + (((fnv.hash * 40503) & 65535) << 16)) & 4294967295 FROM fnv
         WHERE fnv.patient_id = p.patient_id AND fnv.i = length(fnv.bytes);
         """;
 }

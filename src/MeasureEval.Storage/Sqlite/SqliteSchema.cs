@@ -55,9 +55,11 @@ internal static class SqliteSchema
     ];
 
     /// <summary>
-    /// Fills partition_key (32-bit FNV-1a of the patient id's UTF-8 bytes, as <c>PatientPartitioner.Fnv1a</c>) where it is
-    /// missing, in SQL: hex() of a TEXT value is its UTF-8 bytes in hex; a recursive step takes one byte (two hex digits);
-    /// a XOR b is (a | b) − (a &amp; b), since SQLite has no XOR; the product stays below 2⁶³ before the mask.
+    /// Fills partition_key (<c>PatientPartitioner.PartitionKey</c>: 32-bit FNV-1a of the patient id's UTF-8 bytes, times
+    /// 0x9E3779B9 modulo 2³²) where it is missing, in SQL: hex() of a TEXT value is its UTF-8 bytes in hex; a recursive
+    /// step takes one byte (two hex digits); a XOR b is (a | b) − (a &amp; b), since SQLite has no XOR. Products stay below
+    /// 2⁶³ (SQLite turns an overflowing integer into a float): the last multiplication is split into the constant's
+    /// 16-bit halves, 0x79B9 = 31161 and 0x9E37 = 40503.
     /// </summary>
     internal const string PartitionKeyBackfill = """
         WITH RECURSIVE fnv(patient_id, hex, i, hash) AS (
@@ -69,7 +71,7 @@ internal static class SqliteSchema
                  * 16777619) & 4294967295
             FROM fnv WHERE i < length(hex)
         )
-        UPDATE patient_index SET partition_key = fnv.hash FROM fnv
+        UPDATE patient_index SET partition_key = (fnv.hash * 31161 + (((fnv.hash * 40503) & 65535) << 16)) & 4294967295 FROM fnv
         WHERE fnv.patient_id = patient_index.patient_id AND fnv.i > length(fnv.hex);
         """;
 }
