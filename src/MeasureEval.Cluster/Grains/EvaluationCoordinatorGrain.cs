@@ -31,7 +31,15 @@ internal sealed partial class EvaluationCoordinatorGrain(IOptions<MeasureCluster
             _done++;
             if (progress is not null)
             {
-                await progress.PartitionsDone(_done, request.Partitions);
+                try
+                {
+                    await progress.PartitionsDone(_done, request.Partitions);
+                }
+                catch (Exception e) when (e is OrleansException or TimeoutException)
+                {
+                    // Progress is for the caller's information; losing a count must not fail the evaluation.
+                    LogProgressLost(logger, e.GetType().Name);
+                }
             }
 
             return result;
@@ -65,6 +73,9 @@ internal sealed partial class EvaluationCoordinatorGrain(IOptions<MeasureCluster
             }
         }
     }
+
+    [LoggerMessage(Level = LogLevel.Warning, Message = "A progress report to the caller failed ({Error})")]
+    private static partial void LogProgressLost(ILogger logger, string error);
 
     [LoggerMessage(Level = LogLevel.Warning, Message = "Partition {Partition} failed ({Error}); attempt {Attempt} on the live nodes")]
     private static partial void LogRetry(ILogger logger, int partition, int attempt, string error);

@@ -1,5 +1,4 @@
 using MeasureEval.Cluster.Partitions;
-using Orleans.Concurrency;
 
 namespace MeasureEval.Cluster.Grains;
 
@@ -19,7 +18,9 @@ public interface IEvaluationCoordinatorGrain : IGrainWithGuidKey
 /// <summary>The caller's side of a run's progress (an object reference on the node that took the request).</summary>
 public interface IPartitionProgressObserver : IGrainObserver
 {
-    /// <summary><paramref name="done"/> of <paramref name="total"/> partitions have their result at the coordinator.</summary>
-    [OneWay]
+    /// <summary>
+    /// <paramref name="done"/> of <paramref name="total"/> partitions have their result at the coordinator. Awaited (not
+    /// one-way), so every count has been delivered when the run returns; concurrent calls may arrive out of order.
+    /// </summary>
     System.Threading.Tasks.Task PartitionsDone(int done, int total);
 }

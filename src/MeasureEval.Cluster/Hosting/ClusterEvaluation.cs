@@ -47,7 +47,7 @@ public sealed class ClusterEvaluation(IGrainFactory grains, IOptions<MeasureClus
         return ([.. measures.Select((m, i) => run.Measures[i].ToSummary(m, period, keepSubjects))], run);
     }
 
-    /// <summary>Passes partition counts on; one-way calls may overtake each other, so a count below the last one is dropped.</summary>
+    /// <summary>Passes partition counts on; concurrent calls may overtake each other, so a count below the last one is dropped.</summary>
     private sealed class ProgressRelay(IProgress<EvaluationProgress> progress) : IPartitionProgressObserver
     {
         private int _last;

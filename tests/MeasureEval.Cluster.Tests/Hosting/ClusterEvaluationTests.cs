@@ -1,8 +1,18 @@
 using System.Diagnostics;
 using System.Globalization;
 using System.Text.Json.Nodes;
+using Hl7.Fhir.Model;
+using MeasureEval.Cluster.Hosting;
+using MeasureEval.Core.Storage;
+using MeasureEval.Engine;
+using MeasureEval.Storage;
 using MeasureEval.Testing;
+using Microsoft.Extensions.Configuration;
+using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.Hosting;
+using Microsoft.Extensions.Logging;
 using Xunit.Abstractions;
+using Task = System.Threading.Tasks.Task;
 
 namespace MeasureEval.Cluster.Tests.Hosting;
 
@@ -78,7 +88,91 @@ public sealed class ClusterEvaluationTests(PostgresServer postgres, ITestOutputH
             $"retries {killHeaders.Retries}, partitions on the killed node {placed[victim.SiloPort]}");
     }
 
+    [SkippableFact]
+    public async Task SummarizeAsync_WithProgress_CountsPartitionsUpToTheTotalAndMatchesOneNode()
+    {
+        Skip.IfNot(postgres.IsAvailable, postgres.UnavailableReason);
+        Skip.IfNot(File.Exists(NodeProcesses.RedisServer), "redis-server is not installed (apt-get install redis-server)");
+        var repository = MeasureRepository.Load(Path.Combine(NodeProcesses.FindRoot(), "measures"), out _);
+        var builder = Host.CreateApplicationBuilder();
+        builder.Configuration.AddInMemoryCollection(new Dictionary<string, string?>
+        {
+            ["Storage:Provider"] = "Postgres",
+            ["Storage:ConnectionString"] = await postgres.CreateSchemaAsync(),
+            ["Cluster:Enabled"] = "true",
+            ["Cluster:ClusterId"] = $"test-{Guid.NewGuid():N}",
+            ["Cluster:RedisConnectionString"] = $"127.0.0.1:{_nodes.StartRedis()}",
+            ["Cluster:SiloPort"] = NodeProcesses.FreePort().ToString(CultureInfo.InvariantCulture),
+            ["Cluster:Partitions"] = "16",
+        });
+        builder.Logging.ClearProviders();
+        builder.Services.AddMeasureEvalStorage();
+        builder.AddMeasureEvalCluster((_, _) => Task.FromResult(repository));
+        using var host = builder.Build();
+        await host.StartAsync();
+        var store = host.Services.GetRequiredService<IResourceStore>();
+        await using (var session = await store.BeginWriteAsync(default))
+        {
+            for (var i = 0; i < 40; i++)
+            {
+                var patient = new Patient { Id = $"p{i}", Gender = i % 2 == 0 ? AdministrativeGender.Female : AdministrativeGender.Male, BirthDate = $"{1950 + i}-03-01" };
+                await session.UpdateAsync(patient, null, default);
+            }
+
+            await session.CommitAsync(default);
+        }
+
+        var measures = repository.Measures.ToArray();
+        var period = new MeasurementPeriod(new DateOnly(2026, 1, 1), new DateOnly(2026, 12, 31));
+        var progress = new RecordingProgress();
+
+        var (summaries, run) = await host.Services.GetRequiredService<ClusterEvaluation>().SummarizeAsync(measures, period, null, null, false, progress);
+
+        var single = await new PopulationEvaluator(new MeasureEvaluator(repository, new StoreRecordSource(store)))
+            .SummarizeAsync(store.StreamPatientFactsAsync(null, default), measures, period, false, default);
+        Assert.Equal(single.Select(s => (s.PatientsEvaluated, s.Counts.ToCounts())), summaries.Select(s => (s.PatientsEvaluated, s.Counts.ToCounts())), new CountsComparer());
+        Assert.All(summaries, s => Assert.Equal(40, s.PatientsEvaluated));
+        Assert.Equal(16, run.PartitionSilos.Count);
+        var reports = progress.Reports;
+        Assert.Equal(new EvaluationProgress(0, 16, "partitions"), reports[0]);
+        Assert.Equal(new EvaluationProgress(16, 16, "partitions"), reports[^1]);
+        Assert.Equal(reports.Select(r => r.Done).Order(), reports.Select(r => r.Done));
+        await host.StopAsync();
+    }
+
     public void Dispose() => _nodes.Dispose();
+
+    /// <summary>Records synchronously (Progress&lt;T&gt; would post to the thread pool and may report after the call returned).</summary>
+    private sealed class RecordingProgress : IProgress<EvaluationProgress>
+    {
+        private readonly List<EvaluationProgress> _reports = [];
+
+        public IReadOnlyList<EvaluationProgress> Reports
+        {
+            get
+            {
+                lock (_reports)
+                {
+                    return [.. _reports];
+                }
+            }
+        }
+
+        public void Report(EvaluationProgress value)
+        {
+            lock (_reports)
+            {
+                _reports.Add(value);
+            }
+        }
+    }
+
+    private sealed class CountsComparer : IEqualityComparer<(int, int[])>
+    {
+        public bool Equals((int, int[]) x, (int, int[]) y) => x.Item1 == y.Item1 && x.Item2.SequenceEqual(y.Item2);
+
+        public int GetHashCode((int, int[]) obj) => obj.Item1;
+    }
 
     private static int InitialPopulation(string report) =>
         JsonNode.Parse(report)!["group"]![0]!["population"]!.AsArray()
@@ -272,14 +366,14 @@ internal sealed class NodeProcesses : IDisposable
         return process;
     }
 
-    private static int FreePort()
+    public static int FreePort()
     {
         using var listener = new System.Net.Sockets.TcpListener(System.Net.IPAddress.Loopback, 0);
         listener.Start();
         return ((System.Net.IPEndPoint)listener.LocalEndpoint).Port;
     }
 
-    private static string FindRoot()
+    public static string FindRoot()
     {
         var directory = new DirectoryInfo(AppContext.BaseDirectory);
         while (!File.Exists(Path.Combine(directory!.FullName, "MeasureEval.sln")))
