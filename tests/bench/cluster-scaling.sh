@@ -3,10 +3,12 @@
 # 1, 2 and 3 nodes (64 partitions), all over one throwaway PostgreSQL 15, Redis membership. Prints medians, the
 # per-partition overhead and the projected throughput per added core. Not a test: figures move with the machine's load.
 # Usage (from the repository root): tests/bench/cluster-scaling.sh [patients (0 = the 500-patient demo)] [runs]
+# PARTITIONS (default 64) and NODES (default "1 2 3") change the cluster runs.
 set -euo pipefail
 patients=${1:-0}
 runs=${2:-7}
-partitions=64
+partitions=${PARTITIONS:-64}
+node_counts=${NODES:-1 2 3}
 root=$(cd "$(dirname "$0")/../.." && pwd)
 work=$(mktemp -d /tmp/measureeval-cluster-bench-XXXX)
 pgbin=/usr/lib/postgresql/15/bin
@@ -88,7 +90,7 @@ measure() { # $1 label, $2 http port; prints "label median_s cpu_s_per_report"
 
 measure single "$base_port"
 stop_nodes
-for n in 1 2 3; do
+for n in $node_counts; do
   cluster="bench-$(date +%s%N)"
   for i in $(seq 1 "$n"); do start_node $((base_port + i)) $((base_port + 10 + i)) "$cluster"; done
   sleep 3 # let every node see the others (table refresh 2 s) before timing
@@ -102,8 +104,10 @@ import sys
 rows = {l.split()[0]: (float(l.split()[1]), float(l.split()[2])) for l in open(sys.argv[1])}
 population, patients, partitions, runs, load, cores = sys.argv[2], int(sys.argv[3]), int(sys.argv[4]), sys.argv[5], sys.argv[6], int(sys.argv[7])
 single, single_cpu = rows["single"]
-print(f"{population}, nine measures, population report, median of {runs}; {cores} cores; load average after: {load}")
+print(f"{population}, nine measures, population report, {partitions} partitions, median of {runs}; {cores} cores; load average after: {load}")
 for key, label in [("single", "single node (cluster off)"), ("nodes-1", "cluster, 1 node"), ("nodes-2", "cluster, 2 nodes"), ("nodes-3", "cluster, 3 nodes")]:
+    if key not in rows:
+        continue
     t, cpu = rows[key]
     print(f"  {label:<26} {t:7.3f} s  ({t / single:5.1f}x single)  CPU {cpu:6.2f} s per report (all nodes)")
 overhead = (rows["nodes-1"][0] - single) / partitions
