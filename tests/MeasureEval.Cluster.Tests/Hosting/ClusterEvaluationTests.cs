@@ -43,8 +43,9 @@ public sealed class ClusterEvaluationTests(PostgresServer postgres, ITestOutputH
         Assert.True(InitialPopulation(expected) > 0, "the demo population must give the measure something to count");
         _nodes.Kill(single);
 
-        // Every partition holds 1 s after it has started, so the kill below lands while the victim's partitions are in flight.
-        var cluster = new ClusterSettings($"test-{Guid.NewGuid():N}", redisPort, Partitions, TimeSpan.FromSeconds(1));
+        // Every partition holds 2 s after it has started, so the kill below lands while the victim's partitions are in flight
+        // (the margin covers the log reaching this process on a loaded machine).
+        var cluster = new ClusterSettings($"test-{Guid.NewGuid():N}", redisPort, Partitions, TimeSpan.FromSeconds(2));
         var nodes = Enumerable.Range(0, NodeCount).Select(_ => _nodes.StartNode(store, cluster)).ToArray();
         foreach (var node in nodes)
         {
