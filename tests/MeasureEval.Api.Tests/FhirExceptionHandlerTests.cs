@@ -2,6 +2,7 @@ using System.Net;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Tests.Support;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Microsoft.AspNetCore.TestHost;
 using Microsoft.Extensions.DependencyInjection;
@@ -39,25 +40,25 @@ public sealed class FhirExceptionHandlerTests(ApiFactory factory) : IClassFixtur
 
         public System.Threading.Tasks.Task<bool> IsReadyAsync(CancellationToken cancellationToken) => inner.IsReadyAsync(cancellationToken);
 
-        public System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, CancellationToken cancellationToken) =>
+        public System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, DataScope scope, CancellationToken cancellationToken) =>
             throw new IOException("disk on fire");
 
-        public System.Threading.Tasks.Task<StoredResource?> ReadVersionAsync(string resourceType, string id, int versionId, CancellationToken cancellationToken) =>
-            inner.ReadVersionAsync(resourceType, id, versionId, cancellationToken);
+        public System.Threading.Tasks.Task<StoredResource?> ReadVersionAsync(string resourceType, string id, int versionId, DataScope scope, CancellationToken cancellationToken) =>
+            inner.ReadVersionAsync(resourceType, id, versionId, scope, cancellationToken);
 
-        public System.Threading.Tasks.Task<IReadOnlyList<StoredResource>> HistoryAsync(string resourceType, string id, CancellationToken cancellationToken) =>
-            inner.HistoryAsync(resourceType, id, cancellationToken);
+        public System.Threading.Tasks.Task<IReadOnlyList<StoredResource>> HistoryAsync(string resourceType, string id, DataScope scope, CancellationToken cancellationToken) =>
+            inner.HistoryAsync(resourceType, id, scope, cancellationToken);
 
         public System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken) => inner.SearchAsync(query, cancellationToken);
 
         public System.Threading.Tasks.Task<IStoreSession> BeginWriteAsync(CancellationToken cancellationToken) => inner.BeginWriteAsync(cancellationToken);
 
-        public System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, CancellationToken cancellationToken) => inner.GetPatientFactsAsync(patientId, cancellationToken);
+        public System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, DataScope scope, CancellationToken cancellationToken) => inner.GetPatientFactsAsync(patientId, scope, cancellationToken);
 
-        public IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, CancellationToken cancellationToken) =>
-            inner.StreamPatientFactsAsync(patientIds, cancellationToken);
+        public IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, DataScope scope, CancellationToken cancellationToken) =>
+            inner.StreamPatientFactsAsync(patientIds, scope, cancellationToken);
 
-        public IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(int partition, int partitionCount, CancellationToken cancellationToken) =>
-            inner.StreamPartitionFactsAsync(partition, partitionCount, cancellationToken);
+        public IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(int partition, int partitionCount, DataScope scope, CancellationToken cancellationToken) =>
+            inner.StreamPartitionFactsAsync(partition, partitionCount, scope, cancellationToken);
     }
 }

@@ -1,5 +1,6 @@
 using Hl7.Fhir.Model;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Task = System.Threading.Tasks.Task;
 
@@ -15,7 +16,7 @@ public abstract partial class ResourceStoreContract
         await using var store = await CreateStoreAsync();
         await WriteAllAsync(store, TestResources.Ana(), TestResources.HbA1c(), TestResources.AnaCoverage(), TestResources.Flu(), TestResources.CedarValley());
 
-        var facts = await store.GetPatientFactsAsync("pat-ana", default);
+        var facts = await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default);
 
         // Values as written in Resources/patient-ana.json, observation-hba1c.json, coverage-ana.json, immunization-flu.json.
         Assert.NotNull(facts);
@@ -37,7 +38,7 @@ public abstract partial class ResourceStoreContract
         await using var store = await CreateStoreAsync();
         await WriteAllAsync(store, TestResources.HbA1c());
 
-        var facts = await store.GetPatientFactsAsync("pat-ana", default);
+        var facts = await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default);
 
         Assert.Null(facts!.Demographics);
         Assert.Single(facts.Facts);
@@ -54,7 +55,7 @@ public abstract partial class ResourceStoreContract
 
         await WriteAllAsync(store, amended);
 
-        var fact = Assert.Single((await store.GetPatientFactsAsync("pat-ana", default))!.Facts);
+        var fact = Assert.Single((await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default))!.Facts);
         Assert.Equal(("amended", 6.8m, "2"), (fact.Status, fact.Quantity!.Value, fact.VersionId));
     }
 
@@ -68,10 +69,10 @@ public abstract partial class ResourceStoreContract
 
         await WriteAllAsync(store, moved);
 
-        Assert.Empty((await store.GetPatientFactsAsync("pat-ana", default))!.Facts);
-        Assert.Equal(["obs-a1c"], (await store.GetPatientFactsAsync("pat-ben", default))!.Facts.Select(f => f.Id));
-        Assert.Equal(["obs-a1c"], await IdsAsync(store, new SearchQuery("Observation") { PatientId = "pat-ben" }));
-        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { PatientId = "pat-ana" }));
+        Assert.Empty((await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default))!.Facts);
+        Assert.Equal(["obs-a1c"], (await store.GetPatientFactsAsync("pat-ben", DataScope.Unrestricted, default))!.Facts.Select(f => f.Id));
+        Assert.Equal(["obs-a1c"], await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, PatientId = "pat-ben" }));
+        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, PatientId = "pat-ana" }));
     }
 
     [SkippableFact]
@@ -84,7 +85,7 @@ public abstract partial class ResourceStoreContract
 
         await WriteAllAsync(store, groupSubject);
 
-        Assert.Null(await store.GetPatientFactsAsync("pat-ana", default));
+        Assert.Null(await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default));
     }
 
     [SkippableFact]
@@ -100,7 +101,7 @@ public abstract partial class ResourceStoreContract
             await session.CommitAsync(default);
         }
 
-        var facts = await store.GetPatientFactsAsync("pat-ana", default);
+        var facts = await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default);
         Assert.Null(facts!.Demographics);
         Assert.Empty(facts.Coverages);
         Assert.Single(facts.Facts);
@@ -113,7 +114,7 @@ public abstract partial class ResourceStoreContract
         string[] patients = ["b", "a", "B", "a-1", "10", "9", "a.2"];
         await WriteAllAsync(store, [.. patients.Select(p => TestResources.ObservationOf($"obs-{p}", p)), TestResources.CedarValley()]);
 
-        var streamed = await ToListAsync(store.StreamPatientFactsAsync(null, default));
+        var streamed = await ToListAsync(store.StreamPatientFactsAsync(null, DataScope.Unrestricted, default));
 
         // Ordinal order compares UTF-16 code units: digits < upper case < lower case; "-" (0x2D) < "." (0x2E).
         Assert.Equal(["10", "9", "B", "a", "a-1", "a.2", "b"], streamed.Select(f => f.PatientId));
@@ -126,10 +127,10 @@ public abstract partial class ResourceStoreContract
         await using var store = await CreateStoreAsync();
         await WriteAllAsync(store, [.. Enumerable.Range(0, 30).Select(i => TestResources.ObservationOf($"obs-{i}", $"p{i:D2}"))]);
 
-        var streamed = await ToListAsync(store.StreamPatientFactsAsync(["p17", "p03", "unknown", "p17", "p29"], default));
+        var streamed = await ToListAsync(store.StreamPatientFactsAsync(["p17", "p03", "unknown", "p17", "p29"], DataScope.Unrestricted, default));
 
         Assert.Equal(["p03", "p17", "p29"], streamed.Select(f => f.PatientId));
-        Assert.Empty(await ToListAsync(store.StreamPatientFactsAsync([], default)));
+        Assert.Empty(await ToListAsync(store.StreamPatientFactsAsync([], DataScope.Unrestricted, default)));
     }
 
     [SkippableFact]
@@ -153,10 +154,10 @@ public abstract partial class ResourceStoreContract
             await session.CommitAsync(default);
         }
 
-        var streamed = await ToListAsync(store.StreamPatientFactsAsync(null, default));
+        var streamed = await ToListAsync(store.StreamPatientFactsAsync(null, DataScope.Unrestricted, default));
         Assert.Equal(patients, streamed.Count);
         Assert.All(streamed, f => Assert.Equal(2, f.Facts.Count));
-        Assert.Equal(2 * patients, (await store.SearchAsync(new SearchQuery("Observation") { Count = 0 }, default)).Total);
+        Assert.Equal(2 * patients, (await store.SearchAsync(new SearchQuery("Observation") { Scope = DataScope.Unrestricted, Count = 0 }, default)).Total);
     }
 
     [SkippableFact]
@@ -186,7 +187,7 @@ public abstract partial class ResourceStoreContract
         var moved = TestResources.HbA1c();
         moved.Subject = new ResourceReference("Patient/pat-cy");
         await WriteAllAsync(store, moved);
-        Assert.DoesNotContain((await store.GetPatientFactsAsync("pat-ben", default))!.Facts, f => f.Id == "obs-a1c");
+        Assert.DoesNotContain((await store.GetPatientFactsAsync("pat-ben", DataScope.Unrestricted, default))!.Facts, f => f.Id == "obs-a1c");
     }
 
     /// <summary>Versions, a move to another patient, a deletion and a resource outside any patient.</summary>
@@ -202,7 +203,7 @@ public abstract partial class ResourceStoreContract
     }
 
     private static async Task<List<string>> SnapshotAsync(IResourceStore store) =>
-        [.. (await ToListAsync(store.StreamPatientFactsAsync(null, default))).Select(f => System.Text.Json.JsonSerializer.Serialize(f, SnapshotOptions))];
+        [.. (await ToListAsync(store.StreamPatientFactsAsync(null, DataScope.Unrestricted, default))).Select(f => System.Text.Json.JsonSerializer.Serialize(f, SnapshotOptions))];
 
     private static readonly System.Text.Json.JsonSerializerOptions SnapshotOptions = new() { TypeInfoResolver = new System.Text.Json.Serialization.Metadata.DefaultJsonTypeInfoResolver() };
 
@@ -227,9 +228,9 @@ public abstract partial class ResourceStoreContract
             }
         })));
 
-        var history = await store.HistoryAsync("Observation", "obs-a1c", default);
+        var history = await store.HistoryAsync("Observation", "obs-a1c", DataScope.Unrestricted, default);
         Assert.Equal(Enumerable.Range(1, 1 + (writers * updatesEach)).Reverse(), history.Select(h => h.VersionId));
-        var facts = await store.GetPatientFactsAsync("pat-ana", default);
+        var facts = await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default);
         Assert.Equal(1 + (writers * updatesEach), facts!.Facts.Count);
         Assert.Equal((1 + (writers * updatesEach)).ToString(System.Globalization.CultureInfo.InvariantCulture), facts.Facts.Single(f => f.Id == "obs-a1c").VersionId);
     }

@@ -1,4 +1,5 @@
 using MeasureEval.Core.Partitions;
+using MeasureEval.Core.Security;
 using Task = System.Threading.Tasks.Task;
 
 namespace MeasureEval.Storage.Tests;
@@ -20,12 +21,12 @@ public abstract partial class ResourceStoreContract
     {
         await using var store = await CreateStoreAsync();
         await WriteAllAsync(store, [.. PartitionedIds.Select(p => TestResources.ObservationOf($"obs-{Guid.NewGuid():N}", p)), TestResources.CedarValley()]);
-        var all = (await ToListAsync(store.StreamPatientFactsAsync(null, default))).Select(f => f.PatientId).ToList();
+        var all = (await ToListAsync(store.StreamPatientFactsAsync(null, DataScope.Unrestricted, default))).Select(f => f.PatientId).ToList();
 
         var seen = new List<string>();
         for (var partition = 0; partition < partitionCount; partition++)
         {
-            var ids = (await ToListAsync(store.StreamPartitionFactsAsync(partition, partitionCount, default))).Select(f => f.PatientId).ToList();
+            var ids = (await ToListAsync(store.StreamPartitionFactsAsync(partition, partitionCount, DataScope.Unrestricted, default))).Select(f => f.PatientId).ToList();
             Assert.Equal(ids.Order(StringComparer.Ordinal), ids);
             Assert.All(ids, id => Assert.Equal(partition, PatientPartitioner.PartitionOf(id, partitionCount)));
             seen.AddRange(ids);
@@ -48,7 +49,7 @@ public abstract partial class ResourceStoreContract
         var ids = new List<string>();
         for (var partition = 0; partition < 4; partition++)
         {
-            ids.AddRange((await ToListAsync(store.StreamPartitionFactsAsync(partition, 4, default))).Select(f => f.PatientId));
+            ids.AddRange((await ToListAsync(store.StreamPartitionFactsAsync(partition, 4, DataScope.Unrestricted, default))).Select(f => f.PatientId));
         }
 
         // p1 lost its only fact and p2's was deleted: their entries are gone (an empty entry is deleted), p3's is new.
@@ -61,7 +62,7 @@ public abstract partial class ResourceStoreContract
         await using var store = await CreateStoreAsync();
         await WriteAllAsync(store, [.. PartitionedIds.Select(p => TestResources.ObservationOf($"obs-{Guid.NewGuid():N}", p))]);
         await ExecuteSqlAsync("UPDATE patient_index SET partition_key = NULL");
-        Assert.Empty(await ToListAsync(store.StreamPartitionFactsAsync(0, 1, default)));
+        Assert.Empty(await ToListAsync(store.StreamPartitionFactsAsync(0, 1, DataScope.Unrestricted, default)));
 
         await ExecuteSqlAsync(PartitionKeyBackfill);
 
@@ -70,10 +71,34 @@ public abstract partial class ResourceStoreContract
         const int fine = int.MaxValue;
         foreach (var id in PartitionedIds)
         {
-            var found = await ToListAsync(store.StreamPartitionFactsAsync(PatientPartitioner.PartitionOf(id, fine), fine, default));
+            var found = await ToListAsync(store.StreamPartitionFactsAsync(PatientPartitioner.PartitionOf(id, fine), fine, DataScope.Unrestricted, default));
             Assert.Equal(id, Assert.Single(found).PatientId);
         }
 
-        Assert.Equal(PartitionedIds.Length, (await ToListAsync(store.StreamPartitionFactsAsync(0, 1, default))).Count);
+        Assert.Equal(PartitionedIds.Length, (await ToListAsync(store.StreamPartitionFactsAsync(0, 1, DataScope.Unrestricted, default))).Count);
+    }
+
+    [SkippableFact]
+    public async Task StreamPartitionFactsAsync_PayerScope_YieldsOnlyItsMembersOfThePartition()
+    {
+        await using var store = await CreateStoreAsync();
+        string[] members = [.. Enumerable.Range(0, 20).Select(i => $"pa{i}")];
+        string[] others = [.. Enumerable.Range(0, 20).Select(i => $"pb{i}")];
+        await WriteAllAsync(store, [
+            .. members.Select(Person), .. members.Select(p => CoverageOf($"cov-{p}", p, "plan-a")), .. members.Select(p => CoverageOf($"cov2-{p}", p, "plan-b")),
+            .. others.Select(Person), .. others.Select(p => CoverageOf($"cov-{p}", p, "plan-b")), Plan("plan-a"), Plan("plan-b")]);
+
+        var seen = new List<string>();
+        for (var partition = 0; partition < 4; partition++)
+        {
+            var facts = await ToListAsync(store.StreamPartitionFactsAsync(partition, 4, PlanA, default));
+            Assert.All(facts, f => Assert.Equal(partition, PatientPartitioner.PartitionOf(f.PatientId, 4)));
+
+            // As in the scoped full stream, a payer's entry keeps only that payer's Coverages (each member also has a plan-b one).
+            Assert.All(facts, f => Assert.Equal(["cov-" + f.PatientId], f.Coverages.Select(c => c.Id)));
+            seen.AddRange(facts.Select(f => f.PatientId));
+        }
+
+        Assert.Equal(members.Order(StringComparer.Ordinal), seen.Order(StringComparer.Ordinal));
     }
 }

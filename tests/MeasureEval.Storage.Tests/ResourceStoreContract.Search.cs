@@ -1,4 +1,5 @@
 using Hl7.Fhir.Model;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Task = System.Threading.Tasks.Task;
 
@@ -14,11 +15,11 @@ public abstract partial class ResourceStoreContract
             TestResources.CedarValley(), TestResources.ObservationOf("obs-other", "pat-ben"));
 
         // FHIR R4 compartmentdefinition-patient: Observation.subject, Immunization.patient, Coverage.beneficiary; the Patient is in its own compartment.
-        Assert.Equal(["obs-a1c"], await IdsAsync(store, new SearchQuery("Observation") { PatientId = "pat-ana" }));
-        Assert.Equal(["imm-flu"], await IdsAsync(store, new SearchQuery("Immunization") { PatientId = "pat-ana" }));
-        Assert.Equal(["cov-ana"], await IdsAsync(store, new SearchQuery("Coverage") { PatientId = "pat-ana" }));
-        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { PatientId = "pat-ana" }));
-        Assert.Empty(await IdsAsync(store, new SearchQuery("Organization") { PatientId = "pat-ana" }));
+        Assert.Equal(["obs-a1c"], await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, PatientId = "pat-ana" }));
+        Assert.Equal(["imm-flu"], await IdsAsync(store, new SearchQuery("Immunization") { Scope = DataScope.Unrestricted, PatientId = "pat-ana" }));
+        Assert.Equal(["cov-ana"], await IdsAsync(store, new SearchQuery("Coverage") { Scope = DataScope.Unrestricted, PatientId = "pat-ana" }));
+        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Scope = DataScope.Unrestricted, PatientId = "pat-ana" }));
+        Assert.Empty(await IdsAsync(store, new SearchQuery("Organization") { Scope = DataScope.Unrestricted, PatientId = "pat-ana" }));
     }
 
     [SkippableFact]
@@ -28,13 +29,13 @@ public abstract partial class ResourceStoreContract
         await WriteAllAsync(store, TestResources.Ana(), TestResources.CedarValley());
 
         // FHIR R4 search.html, token: system|value, |value (no system), value (any system).
-        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Identifiers = [new TokenValue("https://riverbend.example.org/mrn", "RB-1001")] }));
-        Assert.Empty(await IdsAsync(store, new SearchQuery("Patient") { Identifiers = [new TokenValue("https://other.example.org/mrn", "RB-1001")] }));
-        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Identifiers = [new TokenValue("", "LOCAL-17")] }));
-        Assert.Empty(await IdsAsync(store, new SearchQuery("Patient") { Identifiers = [new TokenValue("", "RB-1001")] }));
-        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Identifiers = [new TokenValue(null, "RB-1001")] }));
-        Assert.Equal(["cedar-valley"], await IdsAsync(store, new SearchQuery("Organization") { Identifiers = [new TokenValue(null, "CVHP")] }));
-        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Identifiers = [new TokenValue(null, "nope"), new TokenValue(null, "LOCAL-17")] }));
+        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Scope = DataScope.Unrestricted, Identifiers = [new TokenValue("https://riverbend.example.org/mrn", "RB-1001")] }));
+        Assert.Empty(await IdsAsync(store, new SearchQuery("Patient") { Scope = DataScope.Unrestricted, Identifiers = [new TokenValue("https://other.example.org/mrn", "RB-1001")] }));
+        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Scope = DataScope.Unrestricted, Identifiers = [new TokenValue("", "LOCAL-17")] }));
+        Assert.Empty(await IdsAsync(store, new SearchQuery("Patient") { Scope = DataScope.Unrestricted, Identifiers = [new TokenValue("", "RB-1001")] }));
+        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Scope = DataScope.Unrestricted, Identifiers = [new TokenValue(null, "RB-1001")] }));
+        Assert.Equal(["cedar-valley"], await IdsAsync(store, new SearchQuery("Organization") { Scope = DataScope.Unrestricted, Identifiers = [new TokenValue(null, "CVHP")] }));
+        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Scope = DataScope.Unrestricted, Identifiers = [new TokenValue(null, "nope"), new TokenValue(null, "LOCAL-17")] }));
     }
 
     [SkippableFact]
@@ -47,8 +48,8 @@ public abstract partial class ResourceStoreContract
 
         await WriteAllAsync(store, renumbered);
 
-        Assert.Empty(await IdsAsync(store, new SearchQuery("Patient") { Identifiers = [new TokenValue(null, "RB-1001")] }));
-        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Identifiers = [new TokenValue(null, "RB-2002")] }));
+        Assert.Empty(await IdsAsync(store, new SearchQuery("Patient") { Scope = DataScope.Unrestricted, Identifiers = [new TokenValue(null, "RB-1001")] }));
+        Assert.Equal(["pat-ana"], await IdsAsync(store, new SearchQuery("Patient") { Scope = DataScope.Unrestricted, Identifiers = [new TokenValue(null, "RB-2002")] }));
     }
 
     [SkippableFact]
@@ -57,8 +58,8 @@ public abstract partial class ResourceStoreContract
         await using var store = await CreateStoreAsync();
         await WriteAllAsync(store, TestResources.ObservationOf("c", "p"), TestResources.ObservationOf("a", "p"), TestResources.ObservationOf("b", "p"));
 
-        Assert.Equal(["a", "c"], await IdsAsync(store, new SearchQuery("Observation") { Ids = ["c", "a", "zz"] }));
-        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { Ids = [] }));
+        Assert.Equal(["a", "c"], await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, Ids = ["c", "a", "zz"] }));
+        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, Ids = [] }));
     }
 
     [SkippableFact]
@@ -71,11 +72,11 @@ public abstract partial class ResourceStoreContract
             Time.Advance(TimeSpan.FromHours(1));
         }
 
-        Assert.Equal(["t1", "t2"], await IdsAsync(store, new SearchQuery("Observation") { LastUpdated = [new InstantRange(Start.AddHours(1), Start.AddHours(3))] }));
-        Assert.Equal(["t2", "t3"], await IdsAsync(store, new SearchQuery("Observation") { LastUpdated = [new InstantRange(Start.AddHours(2), null)] }));
-        Assert.Equal(["t0"], await IdsAsync(store, new SearchQuery("Observation") { LastUpdated = [new InstantRange(null, Start.AddHours(1))] }));
+        Assert.Equal(["t1", "t2"], await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, LastUpdated = [new InstantRange(Start.AddHours(1), Start.AddHours(3))] }));
+        Assert.Equal(["t2", "t3"], await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, LastUpdated = [new InstantRange(Start.AddHours(2), null)] }));
+        Assert.Equal(["t0"], await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, LastUpdated = [new InstantRange(null, Start.AddHours(1))] }));
         Assert.Equal(["t1"], await IdsAsync(store, new SearchQuery("Observation")
-        {
+        { Scope = DataScope.Unrestricted,
             LastUpdated = [new InstantRange(Start.AddHours(1), null), new InstantRange(null, Start.AddHours(2))],
         }));
     }
@@ -90,13 +91,13 @@ public abstract partial class ResourceStoreContract
             Time.Advance(TimeSpan.FromHours(1));
         }
 
-        Assert.Equal(["t0", "t3"], await IdsAsync(store, new SearchQuery("Observation") { LastUpdatedNotIn = [new InstantRange(Start.AddHours(1), Start.AddHours(3))] }));
+        Assert.Equal(["t0", "t3"], await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, LastUpdatedNotIn = [new InstantRange(Start.AddHours(1), Start.AddHours(3))] }));
         Assert.Equal(["t2"], await IdsAsync(store, new SearchQuery("Observation")
-        {
+        { Scope = DataScope.Unrestricted,
             LastUpdated = [new InstantRange(Start.AddHours(1), null)],
             LastUpdatedNotIn = [new InstantRange(Start.AddHours(1), Start.AddHours(2)), new InstantRange(Start.AddHours(3), null)],
         }));
-        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { LastUpdatedNotIn = [new InstantRange(null, null)] }));
+        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, LastUpdatedNotIn = [new InstantRange(null, null)] }));
     }
 
     [SkippableFact]
@@ -105,9 +106,9 @@ public abstract partial class ResourceStoreContract
         await using var store = await CreateStoreAsync();
         await WriteAllAsync(store, TestResources.HbA1c(), TestResources.ObservationOf("obs-ben", "pat-ben"));
 
-        Assert.Equal(["obs-a1c"], await IdsAsync(store, new SearchQuery("Observation") { PatientId = "pat-ana", Identifiers = [new TokenValue(null, "LAB-77")] }));
-        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { PatientId = "pat-ben", Identifiers = [new TokenValue(null, "LAB-77")] }));
-        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { PatientId = "pat-ana", Ids = ["obs-ben"] }));
+        Assert.Equal(["obs-a1c"], await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, PatientId = "pat-ana", Identifiers = [new TokenValue(null, "LAB-77")] }));
+        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, PatientId = "pat-ben", Identifiers = [new TokenValue(null, "LAB-77")] }));
+        Assert.Empty(await IdsAsync(store, new SearchQuery("Observation") { Scope = DataScope.Unrestricted, PatientId = "pat-ana", Ids = ["obs-ben"] }));
     }
 
     [SkippableFact]
@@ -117,10 +118,10 @@ public abstract partial class ResourceStoreContract
         var ids = Enumerable.Range(0, 7).Select(i => $"obs-{i}").ToArray();
         await WriteAllAsync(store, [.. ids.Reverse().Select(id => TestResources.ObservationOf(id, "p"))]);
 
-        var first = await store.SearchAsync(new SearchQuery("Observation") { Count = 3 }, default);
-        var last = await store.SearchAsync(new SearchQuery("Observation") { Count = 3, Offset = 6 }, default);
-        var beyond = await store.SearchAsync(new SearchQuery("Observation") { Count = 3, Offset = 9 }, default);
-        var countOnly = await store.SearchAsync(new SearchQuery("Observation") { Count = 0 }, default);
+        var first = await store.SearchAsync(new SearchQuery("Observation") { Scope = DataScope.Unrestricted, Count = 3 }, default);
+        var last = await store.SearchAsync(new SearchQuery("Observation") { Scope = DataScope.Unrestricted, Count = 3, Offset = 6 }, default);
+        var beyond = await store.SearchAsync(new SearchQuery("Observation") { Scope = DataScope.Unrestricted, Count = 3, Offset = 9 }, default);
+        var countOnly = await store.SearchAsync(new SearchQuery("Observation") { Scope = DataScope.Unrestricted, Count = 0 }, default);
 
         Assert.Equal(["obs-0", "obs-1", "obs-2"], first.Matches.Select(m => m.Id));
         Assert.Equal(["obs-6"], last.Matches.Select(m => m.Id));
@@ -136,7 +137,7 @@ public abstract partial class ResourceStoreContract
         await using var store = await CreateStoreAsync();
         await WriteAllAsync(store, TestResources.HbA1c());
 
-        Assert.Equal(0, (await store.SearchAsync(new SearchQuery("Condition") { Ids = ["obs-a1c"] }, default)).Total);
+        Assert.Equal(0, (await store.SearchAsync(new SearchQuery("Condition") { Scope = DataScope.Unrestricted, Ids = ["obs-a1c"] }, default)).Total);
     }
 
     private static async Task WriteAllAsync(IResourceStore store, params Resource[] resources)

@@ -2,6 +2,7 @@ using System.Text.RegularExpressions;
 using Hl7.Fhir.Model;
 using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Storage.Common;
 using Microsoft.Extensions.Time.Testing;
@@ -65,9 +66,9 @@ public abstract partial class ResourceStoreContract
     {
         await using var store = await CreateStoreAsync();
 
-        Assert.Null(await store.ReadAsync("Patient", "nobody", default));
-        Assert.Empty(await store.HistoryAsync("Patient", "nobody", default));
-        Assert.Null(await store.GetPatientFactsAsync("nobody", default));
+        Assert.Null(await store.ReadAsync("Patient", "nobody", DataScope.Unrestricted, default));
+        Assert.Empty(await store.HistoryAsync("Patient", "nobody", DataScope.Unrestricted, default));
+        Assert.Null(await store.GetPatientFactsAsync("nobody", DataScope.Unrestricted, default));
     }
 
     [SkippableFact]
@@ -80,7 +81,7 @@ public abstract partial class ResourceStoreContract
         Assert.True(result.Created);
         Assert.False(result.VersionConflict);
         Assert.Equal(("pat-ana", 1), (result.Stored!.Id, result.Stored.VersionId));
-        var read = await store.ReadAsync("Patient", "pat-ana", default);
+        var read = await store.ReadAsync("Patient", "pat-ana", DataScope.Unrestricted, default);
         Assert.Equal(result.Stored, read);
     }
 
@@ -98,12 +99,12 @@ public abstract partial class ResourceStoreContract
         Assert.False(result.Created);
         Assert.Equal(2, result.Stored!.VersionId);
         Assert.Equal("2", FhirJson.Parse<Patient>(result.Stored.Json!).Meta!.VersionId);
-        var history = await store.HistoryAsync("Patient", "pat-ana", default);
+        var history = await store.HistoryAsync("Patient", "pat-ana", DataScope.Unrestricted, default);
         Assert.Equal([2, 1], history.Select(h => h.VersionId));
         Assert.Equal([Start.AddMinutes(5), Start], history.Select(h => h.LastUpdated));
-        var first = await store.ReadVersionAsync("Patient", "pat-ana", 1, default);
+        var first = await store.ReadVersionAsync("Patient", "pat-ana", 1, DataScope.Unrestricted, default);
         Assert.Equal("1961-04-12", FhirJson.Parse<Patient>(first!.Json!).BirthDate);
-        Assert.Null(await store.ReadVersionAsync("Patient", "pat-ana", 3, default));
+        Assert.Null(await store.ReadVersionAsync("Patient", "pat-ana", 3, DataScope.Unrestricted, default));
     }
 
     [SkippableFact]
@@ -130,8 +131,8 @@ public abstract partial class ResourceStoreContract
 
         Assert.True(result.VersionConflict);
         Assert.Equal(1, result.Stored!.VersionId);
-        Assert.Single(await store.HistoryAsync("Patient", "pat-ana", default));
-        Assert.Equal("female", (await store.GetPatientFactsAsync("pat-ana", default))!.Demographics!.Gender);
+        Assert.Single(await store.HistoryAsync("Patient", "pat-ana", DataScope.Unrestricted, default));
+        Assert.Equal("female", (await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default))!.Demographics!.Gender);
     }
 
     [SkippableFact]
@@ -143,8 +144,8 @@ public abstract partial class ResourceStoreContract
 
         Assert.True(result.VersionConflict);
         Assert.Null(result.Stored);
-        Assert.Null(await store.ReadAsync("Patient", "pat-ana", default));
-        Assert.Equal(0, (await store.SearchAsync(new SearchQuery("Patient"), default)).Total);
+        Assert.Null(await store.ReadAsync("Patient", "pat-ana", DataScope.Unrestricted, default));
+        Assert.Equal(0, (await store.SearchAsync(new SearchQuery("Patient") { Scope = DataScope.Unrestricted }, default)).Total);
     }
 
     [SkippableFact]
@@ -170,14 +171,14 @@ public abstract partial class ResourceStoreContract
         var result = await WriteAsync(store, s => s.DeleteAsync("Observation", "obs-a1c", null, default));
 
         Assert.Equal((2, true, (string?)null), (result.Stored!.VersionId, result.Stored.Deleted, result.Stored.Json));
-        var read = await store.ReadAsync("Observation", "obs-a1c", default);
+        var read = await store.ReadAsync("Observation", "obs-a1c", DataScope.Unrestricted, default);
         Assert.True(read!.Deleted);
         Assert.Equal(Start.AddSeconds(30), read.LastUpdated);
-        var history = await store.HistoryAsync("Observation", "obs-a1c", default);
+        var history = await store.HistoryAsync("Observation", "obs-a1c", DataScope.Unrestricted, default);
         Assert.Equal([(2, true), (1, false)], history.Select(h => (h.VersionId, h.Deleted)));
-        Assert.NotNull((await store.ReadVersionAsync("Observation", "obs-a1c", 1, default))!.Json);
-        Assert.Equal(0, (await store.SearchAsync(new SearchQuery("Observation"), default)).Total);
-        Assert.Null(await store.GetPatientFactsAsync("pat-ana", default));
+        Assert.NotNull((await store.ReadVersionAsync("Observation", "obs-a1c", 1, DataScope.Unrestricted, default))!.Json);
+        Assert.Equal(0, (await store.SearchAsync(new SearchQuery("Observation") { Scope = DataScope.Unrestricted }, default)).Total);
+        Assert.Null(await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default));
     }
 
     [SkippableFact]
@@ -191,7 +192,7 @@ public abstract partial class ResourceStoreContract
 
         Assert.False(again.VersionConflict);
         Assert.Equal(2, again.Stored!.VersionId);
-        Assert.Equal(2, (await store.HistoryAsync("Observation", "obs-a1c", default)).Count);
+        Assert.Equal(2, (await store.HistoryAsync("Observation", "obs-a1c", DataScope.Unrestricted, default)).Count);
     }
 
     [SkippableFact]
@@ -202,7 +203,7 @@ public abstract partial class ResourceStoreContract
         var result = await WriteAsync(store, s => s.DeleteAsync("Observation", "missing", null, default));
 
         Assert.Equal(new WriteResult(null, false, false), result);
-        Assert.Null(await store.ReadAsync("Observation", "missing", default));
+        Assert.Null(await store.ReadAsync("Observation", "missing", DataScope.Unrestricted, default));
     }
 
     [SkippableFact]
@@ -214,8 +215,8 @@ public abstract partial class ResourceStoreContract
         var result = await WriteAsync(store, s => s.DeleteAsync("Observation", "obs-a1c", 2, default));
 
         Assert.True(result.VersionConflict);
-        Assert.False((await store.ReadAsync("Observation", "obs-a1c", default))!.Deleted);
-        Assert.Single((await store.GetPatientFactsAsync("pat-ana", default))!.Facts);
+        Assert.False((await store.ReadAsync("Observation", "obs-a1c", DataScope.Unrestricted, default))!.Deleted);
+        Assert.Single((await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default))!.Facts);
     }
 
     [SkippableFact]
@@ -229,7 +230,7 @@ public abstract partial class ResourceStoreContract
 
         Assert.True(result.Created);
         Assert.Equal(3, result.Stored!.VersionId);
-        Assert.Single((await store.GetPatientFactsAsync("pat-ana", default))!.Facts);
+        Assert.Single((await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default))!.Facts);
     }
 
     [SkippableFact]
@@ -243,10 +244,10 @@ public abstract partial class ResourceStoreContract
             await session.CreateAsync(TestResources.CedarValley(), default);
         }
 
-        Assert.Null(await store.ReadAsync("Patient", "pat-ana", default));
-        Assert.Equal(0, (await store.SearchAsync(new SearchQuery("Organization"), default)).Total);
-        Assert.Null(await store.GetPatientFactsAsync("pat-ana", default));
-        Assert.Empty(await ToListAsync(store.StreamPatientFactsAsync(null, default)));
+        Assert.Null(await store.ReadAsync("Patient", "pat-ana", DataScope.Unrestricted, default));
+        Assert.Equal(0, (await store.SearchAsync(new SearchQuery("Organization") { Scope = DataScope.Unrestricted }, default)).Total);
+        Assert.Null(await store.GetPatientFactsAsync("pat-ana", DataScope.Unrestricted, default));
+        Assert.Empty(await ToListAsync(store.StreamPatientFactsAsync(null, DataScope.Unrestricted, default)));
     }
 
     [SkippableFact]
@@ -257,14 +258,14 @@ public abstract partial class ResourceStoreContract
         await session.UpdateAsync(TestResources.Ana(), null, default);
 
         var inside = await session.ReadAsync("Patient", "pat-ana", default);
-        var found = await session.SearchAsync(new SearchQuery("Patient") { Identifiers = [new TokenValue(null, "RB-1001")] }, default);
-        var outside = await store.ReadAsync("Patient", "pat-ana", default);
+        var found = await session.SearchAsync(new SearchQuery("Patient") { Scope = DataScope.Unrestricted, Identifiers = [new TokenValue(null, "RB-1001")] }, default);
+        var outside = await store.ReadAsync("Patient", "pat-ana", DataScope.Unrestricted, default);
 
         Assert.Equal(1, inside!.VersionId);
         Assert.Equal(["pat-ana"], found.Matches.Select(m => m.Id));
         Assert.Null(outside);
         await session.CommitAsync(default);
-        Assert.NotNull(await store.ReadAsync("Patient", "pat-ana", default));
+        Assert.NotNull(await store.ReadAsync("Patient", "pat-ana", DataScope.Unrestricted, default));
     }
 
     [SkippableFact]
@@ -286,7 +287,7 @@ public abstract partial class ResourceStoreContract
         await store.InitializeAsync(default);
 
         Assert.True(await store.IsReadyAsync(default));
-        Assert.NotNull(await store.ReadAsync("Patient", "pat-ana", default));
+        Assert.NotNull(await store.ReadAsync("Patient", "pat-ana", DataScope.Unrestricted, default));
     }
 
     private static async Task<T> WriteAsync<T>(IResourceStore store, Func<IStoreSession, Task<T>> write)

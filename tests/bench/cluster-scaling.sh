@@ -3,12 +3,13 @@
 # 1, 2 and 3 nodes (64 partitions), all over one throwaway PostgreSQL 15, Redis membership. Prints medians, the
 # per-partition overhead and the projected throughput per added core. Not a test: figures move with the machine's load.
 # Usage (from the repository root): tests/bench/cluster-scaling.sh [patients (0 = the 500-patient demo)] [runs]
-# PARTITIONS (default 64) and NODES (default "1 2 3") change the cluster runs.
+# PARTITIONS (default 64) and NODES (default "1 2 3") change the cluster runs; WARMUPS (default 1) untimed reports first.
 set -euo pipefail
 patients=${1:-0}
 runs=${2:-7}
 partitions=${PARTITIONS:-64}
 node_counts=${NODES:-1 2 3}
+warmups=${WARMUPS:-1}
 root=$(cd "$(dirname "$0")/../.." && pwd)
 work=$(mktemp -d /tmp/measureeval-cluster-bench-XXXX)
 pgbin=/usr/lib/postgresql/15/bin
@@ -78,7 +79,9 @@ PY
 
 cpu_ticks() { local t=0; for p in "${pids[@]}"; do t=$((t + $(awk '{print $14 + $15}' "/proc/$p/stat"))); done; echo "$t"; }
 measure() { # $1 label, $2 http port; prints "label median_s cpu_s_per_report"
-  curl -sf -o /dev/null -X POST -H 'Content-Type: application/fhir+json' --data-binary @"$work/parameters.json" "http://127.0.0.1:$2/Measure/\$evaluate-measure" # warm-up
+  for _ in $(seq 1 "$warmups"); do
+    curl -sf -o /dev/null -X POST -H 'Content-Type: application/fhir+json' --data-binary @"$work/parameters.json" "http://127.0.0.1:$2/Measure/\$evaluate-measure"
+  done
   local before times=() after
   before=$(cpu_ticks)
   for _ in $(seq 1 "$runs"); do
@@ -99,12 +102,12 @@ for n in $node_counts; do
 done
 
 load=$(cut -d' ' -f1-3 /proc/loadavg)
-python3 - "$work/results.txt" "$population" "$count" "$partitions" "$runs" "$load" "$(nproc)" <<'PY'
+python3 - "$work/results.txt" "$population" "$count" "$partitions" "$runs" "$load" "$(nproc)" "$warmups" <<'PY'
 import sys
 rows = {l.split()[0]: (float(l.split()[1]), float(l.split()[2])) for l in open(sys.argv[1])}
-population, patients, partitions, runs, load, cores = sys.argv[2], int(sys.argv[3]), int(sys.argv[4]), sys.argv[5], sys.argv[6], int(sys.argv[7])
+population, patients, partitions, runs, load, cores, warmups = sys.argv[2], int(sys.argv[3]), int(sys.argv[4]), sys.argv[5], sys.argv[6], int(sys.argv[7]), sys.argv[8]
 single, single_cpu = rows["single"]
-print(f"{population}, nine measures, population report, {partitions} partitions, median of {runs}; {cores} cores; load average after: {load}")
+print(f"{population}, nine measures, population report, {partitions} partitions, median of {runs} after {warmups} warm-up(s); {cores} cores; load average after: {load}")
 for key, label in [("single", "single node (cluster off)"), ("nodes-1", "cluster, 1 node"), ("nodes-2", "cluster, 2 nodes"), ("nodes-3", "cluster, 3 nodes")]:
     if key not in rows:
         continue

@@ -1,5 +1,6 @@
 using Hl7.Fhir.Model;
 using MeasureEval.Core.Fhir;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 
 namespace MeasureEval.Analytics.Population;
@@ -8,7 +9,7 @@ namespace MeasureEval.Analytics.Population;
 public static class ReferenceLabels
 {
     /// <summary>The name of a stored Practitioner, PractitionerRole's practitioner or Organization; null when none is stored.</summary>
-    public static async Task<string?> ResolveAsync(IResourceStore store, string reference, CancellationToken cancellationToken)
+    public static async Task<string?> ResolveAsync(IResourceStore store, string reference, DataScope scope, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(store);
         ArgumentNullException.ThrowIfNull(reference);
@@ -25,7 +26,7 @@ public static class ReferenceLabels
             return null;
         }
 
-        var stored = await store.ReadAsync(type, reference[(slash + 1)..], cancellationToken).ConfigureAwait(false);
+        var stored = await store.ReadAsync(type, reference[(slash + 1)..], scope, cancellationToken).ConfigureAwait(false);
         if (stored is not { Deleted: false, Json: { } json })
         {
             return null;

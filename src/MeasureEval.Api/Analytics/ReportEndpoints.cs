@@ -1,3 +1,4 @@
+using System.Security.Claims;
 using System.Text;
 using System.Globalization;
 using MeasureEval.Analytics.Population;
@@ -34,28 +35,28 @@ public static class ReportEndpoints
     }
 
     public static async Task<Results<ContentHttpResult, FhirResult>> GetIndexAsync(
-        HttpRequest request, MeasureAnalytics analytics, TimeProvider time, CancellationToken cancellationToken)
+        HttpRequest request, ClaimsPrincipal user, MeasureAnalytics analytics, TimeProvider time, CancellationToken cancellationToken)
     {
         if (!ReportQuery.TryParse(request.Query, time, out var query, out var issues) || query.Format == ReportOutput.Csv)
         {
             return FhirResult.Outcome(issues.Count > 0 ? issues : [new FhirIssue(ReportErrorCodes.InvalidParameter, "the index is served as html or json.", "format")]);
         }
 
-        var summaries = await analytics.SummariesAsync(query.Period, cancellationToken).ConfigureAwait(false);
+        var summaries = await analytics.SummariesAsync(query.Period, CallerScope.Of(user), cancellationToken).ConfigureAwait(false);
         return query.Format == ReportOutput.Json
             ? TypedResults.Content(ReportJson.Serialize(summaries), JsonType)
             : TypedResults.Content(ReportIndexPage.Render(query.Period, summaries, id => $"/reports/measures/{Uri.EscapeDataString(id)}{query.ToQueryString()}"), HtmlType);
     }
 
     public static async Task<Results<ContentHttpResult, FhirResult>> GetMeasureReportAsync(
-        string id, HttpRequest request, MeasureAnalytics analytics, TimeProvider time, CancellationToken cancellationToken)
+        string id, HttpRequest request, ClaimsPrincipal user, MeasureAnalytics analytics, TimeProvider time, CancellationToken cancellationToken)
     {
         if (!TryPrepare(id, request, analytics, time, out var measure, out var query, out var failure))
         {
             return failure;
         }
 
-        var report = await analytics.ReportAsync(measure, query.Period, query.Target, query.Interval, cancellationToken).ConfigureAwait(false);
+        var report = await analytics.ReportAsync(measure, query.Period, query.Target, query.Interval, CallerScope.Of(user), cancellationToken).ConfigureAwait(false);
         switch (query.Format)
         {
             case ReportOutput.Json:

@@ -3,6 +3,7 @@ using Hl7.Fhir.Model;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Search;
+using MeasureEval.Core.Security;
 using Microsoft.AspNetCore.WebUtilities;
 
 namespace MeasureEval.Api.Bundles;
@@ -166,7 +167,8 @@ public sealed class BundlePlanner(SearchService search)
                 }
                 else if (target.Id is null)
                 {
-                    if (search.TryParseSearch(target.Type, QueryHelpers.ParseQuery(target.Query ?? ""), strict: false, out var parsed, out var issues))
+                    // Bundles are written under the write policy (ingest, admin), whose callers are unscoped.
+                    if (search.TryParseSearch(target.Type, QueryHelpers.ParseQuery(target.Query ?? ""), DataScope.Unrestricted, strict: false, out var parsed, out var issues))
                     {
                         plan.Search = parsed;
                     }
@@ -184,7 +186,7 @@ public sealed class BundlePlanner(SearchService search)
     public void ParseCondition(EntryPlan plan, IEnumerable<KeyValuePair<string, Microsoft.Extensions.Primitives.StringValues>> parameters)
     {
         ArgumentNullException.ThrowIfNull(plan);
-        if (search.TryParseSearch(plan.Target!.Type, parameters, strict: true, out var condition, out var issues))
+        if (search.TryParseSearch(plan.Target!.Type, parameters, DataScope.Unrestricted, strict: true, out var condition, out var issues))
         {
             plan.Condition = condition! with { Query = condition.Query with { Count = 2, Offset = 0 } };
         }

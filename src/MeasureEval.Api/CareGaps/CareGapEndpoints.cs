@@ -1,8 +1,10 @@
+using System.Security.Claims;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Ingest;
+using MeasureEval.Core.Security;
 using MeasureEval.Engine.Gaps;
 using MeasureEval.Engine.Reports;
 using Microsoft.AspNetCore.Builder;
@@ -37,17 +39,17 @@ public static class CareGapEndpoints
         return app;
     }
 
-    public static async Task<FhirResult> GetCareGapsAsync(HttpRequest request, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken)
+    public static async Task<FhirResult> GetCareGapsAsync(HttpRequest request, ClaimsPrincipal user, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
         var issues = new List<FhirIssue>();
         return CareGapQuery.TryRead(request.Query, time, export: false, issues, out var query)
-            ? await CareGapsAsync(query!, service, reports, time, cancellationToken)
+            ? await CareGapsAsync(query!, CallerScope.Of(user), service, reports, time, cancellationToken)
             : FhirResult.Outcome(issues);
     }
 
     public static async Task<FhirResult> PostCareGapsAsync(
-        HttpRequest request, CareGapService service, MeasureReportBuilder reports, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+        HttpRequest request, ClaimsPrincipal user, CareGapService service, MeasureReportBuilder reports, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(options);
@@ -64,11 +66,11 @@ public static class CareGapEndpoints
 
         var issues = new List<FhirIssue>();
         return CareGapQuery.TryRead(body, time, issues, out var query)
-            ? await CareGapsAsync(query!, service, reports, time, cancellationToken)
+            ? await CareGapsAsync(query!, CallerScope.Of(user), service, reports, time, cancellationToken)
             : FhirResult.Outcome(issues);
     }
 
-    public static async Task<Results<PushStreamHttpResult, FhirResult>> ExportAsync(HttpRequest request, CareGapService service, TimeProvider time, CancellationToken cancellationToken)
+    public static async Task<Results<PushStreamHttpResult, FhirResult>> ExportAsync(HttpRequest request, ClaimsPrincipal user, CareGapService service, TimeProvider time, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(service);
@@ -78,7 +80,7 @@ public static class CareGapEndpoints
             return FhirResult.Outcome(issues);
         }
 
-        var (selection, problems) = await service.SelectAsync(query!, cancellationToken);
+        var (selection, problems) = await service.SelectAsync(query!, CallerScope.Of(user), cancellationToken);
         if (selection is null)
         {
             return FhirResult.Outcome(problems);
@@ -102,10 +104,10 @@ public static class CareGapEndpoints
             csv ? "care-gaps.csv" : "care-gaps.ndjson");
     }
 
-    private static async Task<FhirResult> CareGapsAsync(CareGapQuery query, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken)
+    private static async Task<FhirResult> CareGapsAsync(CareGapQuery query, DataScope scope, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(service);
-        var (selection, problems) = await service.SelectAsync(query, cancellationToken);
+        var (selection, problems) = await service.SelectAsync(query, scope, cancellationToken);
         if (selection is null)
         {
             return FhirResult.Outcome(problems);

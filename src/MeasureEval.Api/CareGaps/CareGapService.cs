@@ -4,6 +4,7 @@ using MeasureEval.Api.Errors;
 using MeasureEval.Api.Measures;
 using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Gaps;
@@ -13,18 +14,24 @@ namespace MeasureEval.Api.CareGaps;
 /// <summary>One patient's gaps of the statuses asked for, in the order of the measures.</summary>
 public sealed record PatientGaps(PatientFacts Facts, IReadOnlyList<(MeasureDefinition Measure, CareGap Gap)> Gaps);
 
-/// <summary>A resolved request: the measures and, for a Patient or Group subject, the patient ids.</summary>
-public sealed record CareGapSelection(MeasureRepository Repository, IReadOnlyList<MeasureDefinition> Measures, IReadOnlyCollection<string>? PatientIds);
+/// <summary>
+/// A resolved request: the measures, for a Patient or Group subject the patient ids, and the caller's scope during the
+/// measurement period (the stream reads only those patients).
+/// </summary>
+public sealed record CareGapSelection(MeasureRepository Repository, IReadOnlyList<MeasureDefinition> Measures, IReadOnlyCollection<string>? PatientIds, DataScope Scope);
 
 /// <summary>
 /// Picks the patients (one, a Group's members, everyone), narrows them to a panel or a payer's members, and streams
-/// their gaps: each patient's facts are read once for all measures, and nothing grows with the population.
+/// their gaps: each patient's facts are read once for all measures, and nothing grows with the population. Everything is
+/// read within the caller's scope: another payer's patient or Group answers as unknown (404), and is never streamed.
 /// </summary>
 public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
 {
-    public async Task<(CareGapSelection? Selection, IReadOnlyList<FhirIssue> Issues)> SelectAsync(CareGapQuery query, CancellationToken cancellationToken)
+    public async Task<(CareGapSelection? Selection, IReadOnlyList<FhirIssue> Issues)> SelectAsync(CareGapQuery query, DataScope scope, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(query);
+        ArgumentNullException.ThrowIfNull(scope);
+        var during = scope.During(query.Period.Start, query.Period.End);
         var repository = await catalog.GetAsync(cancellationToken);
         var issues = new List<FhirIssue>();
         var measures = new List<MeasureDefinition>();
@@ -49,21 +56,21 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
         if (query.SubjectType == "Patient")
         {
             patientIds = [query.SubjectId!];
-            if (await store.GetPatientFactsAsync(query.SubjectId!, cancellationToken) is null)
+            if (await store.GetPatientFactsAsync(query.SubjectId!, during, cancellationToken) is null)
             {
                 issues.Add(new FhirIssue(CareGapErrors.UnknownSubject, $"nothing is stored for Patient/{query.SubjectId}", "subject"));
             }
         }
         else if (query.SubjectType == "Group")
         {
-            patientIds = await GroupMembersAsync(query.SubjectId!, query.Period, cancellationToken);
+            patientIds = await GroupMembersAsync(query.SubjectId!, query.Period, scope, cancellationToken);
             if (patientIds is null)
             {
                 issues.Add(new FhirIssue(CareGapErrors.UnknownSubject, $"Group/{query.SubjectId} is not stored", "subject"));
             }
         }
 
-        return issues.Count > 0 ? (null, issues) : (new CareGapSelection(repository, measures, patientIds), issues);
+        return issues.Count > 0 ? (null, issues) : (new CareGapSelection(repository, measures, patientIds, during), issues);
     }
 
     public async IAsyncEnumerable<PatientGaps> StreamAsync(CareGapSelection selection, CareGapQuery query, [EnumeratorCancellation] CancellationToken cancellationToken)
@@ -73,7 +80,7 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
         var records = new StoreRecordSource(store);
         var evaluator = new MeasureEvaluator(selection.Repository, records);
         var analyzer = new GapAnalyzer(evaluator, records);
-        await foreach (var facts in store.StreamPatientFactsAsync(selection.PatientIds, cancellationToken))
+        await foreach (var facts in store.StreamPatientFactsAsync(selection.PatientIds, selection.Scope, cancellationToken))
         {
             if (!OnPanel(facts, query.Practitioner) || !CoveredBy(facts, query.Organization, query.Period))
             {
@@ -133,9 +140,9 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
     /// The patient ids among the Group's members that are not inactive and whose attribution period (member.period, when
     /// given) overlaps the measurement period; null when no such Group is stored.
     /// </summary>
-    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, MeasurementPeriod period, CancellationToken cancellationToken)
+    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, MeasurementPeriod period, DataScope scope, CancellationToken cancellationToken)
     {
-        var stored = await store.ReadAsync("Group", id, cancellationToken);
+        var stored = await store.ReadAsync("Group", id, scope, cancellationToken);
         if (stored is not { Deleted: false, Json: { } json })
         {
             return null;

@@ -1,6 +1,7 @@
 using System.Text;
 using Hl7.Fhir.Model;
 using MeasureEval.Core.Fhir;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using Microsoft.Extensions.Hosting;
@@ -164,7 +165,7 @@ public sealed partial class MeasureCatalog(IResourceStore store, IOptions<Measur
         const int page = 200;
         for (var offset = 0; ; offset += page)
         {
-            var result = await store.SearchAsync(new SearchQuery(type) { Count = page, Offset = offset }, cancellationToken);
+            var result = await store.SearchAsync(new SearchQuery(type) { Scope = DataScope.Unrestricted, Count = page, Offset = offset }, cancellationToken);
             foreach (var match in result.Matches.Where(m => m.Json is not null))
             {
                 yield return match;

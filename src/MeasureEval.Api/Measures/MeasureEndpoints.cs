@@ -1,10 +1,12 @@
 using System.Buffers;
+using System.Security.Claims;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Ingest;
 using MeasureEval.Core.Fhir;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Reports;
@@ -93,7 +95,7 @@ public static class MeasureEndpoints
 
         return repository.TryGetLibrary(id, out var library)
             ? FhirResult.Of(200, MeasureResources.ToLibrary(library))
-            : await Resources.ResourceEndpoints.ReadAsync("Library", id, store, cancellationToken);
+            : await Resources.ResourceEndpoints.ReadInScopeAsync("Library", id, DataScope.Unrestricted, store, cancellationToken);
     }
 
     public static async Task<FhirResult> PutMeasureAsync(string id, HttpRequest request, MeasureCatalog catalog, IOptions<IngestOptions> options, CancellationToken cancellationToken)
@@ -152,7 +154,7 @@ public static class MeasureEndpoints
         return issues.Count > 0 ? FhirResult.Outcome(ToIssues(issues, fhirRoot: "ValueSet")) : FhirResult.Of(created ? 201 : 200, valueSet);
     }
 
-    public static async Task<FhirResult> EvaluateGetAsync(string id, HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, CancellationToken cancellationToken)
+    public static async Task<FhirResult> EvaluateGetAsync(string id, HttpRequest request, ClaimsPrincipal user, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
         var issues = new List<FhirIssue>();
@@ -161,16 +163,16 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(issues);
         }
 
-        return await EvaluateOneAsync(id, request.HttpContext.Response, parameters!, catalog, service, cancellationToken);
+        return await EvaluateOneAsync(id, request.HttpContext.Response, parameters!, CallerScope.Of(user), catalog, service, cancellationToken);
     }
 
-    public static async Task<FhirResult> EvaluatePostAsync(string id, HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+    public static async Task<FhirResult> EvaluatePostAsync(string id, HttpRequest request, ClaimsPrincipal user, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
     {
         var (parameters, error) = await ReadParametersAsync(request, time, options, cancellationToken);
-        return error ?? await EvaluateOneAsync(id, request.HttpContext.Response, parameters!, catalog, service, cancellationToken);
+        return error ?? await EvaluateOneAsync(id, request.HttpContext.Response, parameters!, CallerScope.Of(user), catalog, service, cancellationToken);
     }
 
-    public static async Task<FhirResult> EvaluateManyAsync(HttpRequest request, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
+    public static async Task<FhirResult> EvaluateManyAsync(HttpRequest request, ClaimsPrincipal user, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(catalog);
         ArgumentNullException.ThrowIfNull(service);
@@ -205,7 +207,7 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(issues);
         }
 
-        var outcome = await service.EvaluateAsync(repository, measures, parameters, cancellationToken);
+        var outcome = await service.EvaluateAsync(repository, measures, parameters, CallerScope.Of(user), cancellationToken);
         if (outcome.Error is not null)
         {
             return FhirResult.Outcome(outcome.Error);
@@ -223,7 +225,8 @@ public static class MeasureEndpoints
     }
 
     private static async Task<FhirResult> EvaluateOneAsync(
-        string id, HttpResponse response, EvaluateParameters parameters, MeasureCatalog catalog, MeasureEvaluationService service, CancellationToken cancellationToken)
+        string id, HttpResponse response, EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service,
+        CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(catalog);
         ArgumentNullException.ThrowIfNull(service);
@@ -233,7 +236,7 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(new FhirIssue(MeasureErrors.UnknownMeasure, $"no measure '{id}' is loaded"));
         }
 
-        var outcome = await service.EvaluateAsync(repository, [measure], parameters, cancellationToken);
+        var outcome = await service.EvaluateAsync(repository, [measure], parameters, scope, cancellationToken);
         if (outcome.Error is not null)
         {
             return FhirResult.Outcome(outcome.Error);

@@ -4,6 +4,7 @@ using MeasureEval.Cluster.Hosting;
 using MeasureEval.Cluster.Partitions;
 using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Reports;
@@ -11,18 +12,25 @@ using MeasureEval.Engine.Reports;
 namespace MeasureEval.Api.Measures;
 
 /// <summary>Runs $evaluate-measure: picks the patients (one, a Group's members, everyone), streams them once for all measures.</summary>
-/// <remarks>In cluster mode (<see cref="ClusterEvaluation"/> registered) a population is evaluated partitioned over the nodes; the reports are the same.</remarks>
+/// <remarks>
+/// In cluster mode (<see cref="ClusterEvaluation"/> registered) a population is evaluated partitioned over the nodes; the reports are the same.
+/// Every patient comes from the store within the caller's scope during the measurement period: a payer's report counts
+/// its members only, and another payer's patient or Group answers as unknown.
+/// </remarks>
 public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time, ClusterEvaluation? cluster = null)
 {
     public Task<EvaluationOutcome> EvaluateAsync(
-        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, CancellationToken cancellationToken) =>
-        EvaluateAsync(repository, measures, parameters, null, cancellationToken);
+        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, DataScope scope, CancellationToken cancellationToken) =>
+        EvaluateAsync(repository, measures, parameters, scope, null, cancellationToken);
 
     /// <summary>As above; in cluster mode a population evaluation reports partitions done to <paramref name="progress"/>.</summary>
     public async Task<EvaluationOutcome> EvaluateAsync(
-        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, IProgress<EvaluationProgress>? progress,
-        CancellationToken cancellationToken)
+        MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, DataScope scope,
+        IProgress<EvaluationProgress>? progress, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(parameters);
+        ArgumentNullException.ThrowIfNull(scope);
+        var during = scope.During(parameters.Period.Start, parameters.Period.End);
         var builder = new MeasureReportBuilder(time);
         var evaluator = new MeasureEvaluator(repository, new StoreRecordSource(store));
         IReadOnlyCollection<string>? patientIds = null;
@@ -32,7 +40,7 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
         }
         else if (parameters.SubjectType == "Group")
         {
-            var members = await GroupMembersAsync(parameters.SubjectId!, cancellationToken);
+            var members = await GroupMembersAsync(parameters.SubjectId!, scope, cancellationToken);
             if (members is null)
             {
                 return new([], new FhirIssue(MeasureErrors.UnknownSubject, $"Group/{parameters.SubjectId} is not stored", "subject"));
@@ -43,7 +51,7 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
 
         if (parameters.ReportKind == ReportKind.Subject)
         {
-            var facts = await store.GetPatientFactsAsync(parameters.SubjectId!, cancellationToken);
+            var facts = await store.GetPatientFactsAsync(parameters.SubjectId!, during, cancellationToken);
             if (facts is null)
             {
                 return new([], new FhirIssue(MeasureErrors.UnknownSubject, $"nothing is stored for Patient/{parameters.SubjectId}", "subject"));
@@ -58,12 +66,12 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
         ClusterRunResult? run = null;
         if (cluster is not null)
         {
-            (summaries, run) = await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects, progress);
+            (summaries, run) = await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects, scope, progress);
         }
         else
         {
             summaries = await new PopulationEvaluator(evaluator).SummarizeAsync(
-                Filter(store.StreamPatientFactsAsync(patientIds, cancellationToken), parameters.PractitionerReference, cancellationToken),
+                Filter(store.StreamPatientFactsAsync(patientIds, during, cancellationToken), parameters.PractitionerReference, cancellationToken),
                 measures, parameters.Period, keepSubjects, cancellationToken);
         }
 
@@ -83,9 +91,9 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
     }
 
     /// <summary>The patient ids among the Group's members (other member types are not patients), or null when no such Group is stored.</summary>
-    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, CancellationToken cancellationToken)
+    private async Task<IReadOnlyCollection<string>?> GroupMembersAsync(string id, DataScope scope, CancellationToken cancellationToken)
     {
-        var stored = await store.ReadAsync("Group", id, cancellationToken);
+        var stored = await store.ReadAsync("Group", id, scope, cancellationToken);
         if (stored is not { Deleted: false, Json: { } json })
         {
             return null;

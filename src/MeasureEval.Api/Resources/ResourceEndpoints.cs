@@ -1,10 +1,12 @@
 using System.Globalization;
+using System.Security.Claims;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Ingest;
 using MeasureEval.Api.Search;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Http;
@@ -38,14 +40,18 @@ public static class ResourceEndpoints
         return app;
     }
 
-    public static async Task<FhirResult> ReadAsync(string type, string id, IResourceStore store, CancellationToken cancellationToken)
+    public static Task<FhirResult> ReadAsync(string type, string id, ClaimsPrincipal user, IResourceStore store, CancellationToken cancellationToken) =>
+        ReadInScopeAsync(type, id, CallerScope.Of(user), store, cancellationToken);
+
+    /// <summary>A read within <paramref name="scope"/>: what lies outside it answers 404 like an unknown id.</summary>
+    public static async Task<FhirResult> ReadInScopeAsync(string type, string id, DataScope scope, IResourceStore store, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(store);
-        var stored = await store.ReadAsync(type, id, cancellationToken);
+        var stored = await store.ReadAsync(type, id, scope, cancellationToken);
         return Answer(stored, $"{type}/{id}");
     }
 
-    public static async Task<FhirResult> VersionReadAsync(string type, string id, string vid, IResourceStore store, CancellationToken cancellationToken)
+    public static async Task<FhirResult> VersionReadAsync(string type, string id, string vid, ClaimsPrincipal user, IResourceStore store, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(store);
         if (!int.TryParse(vid, NumberStyles.None, CultureInfo.InvariantCulture, out var version) || version < 1)
@@ -53,14 +59,14 @@ public static class ResourceEndpoints
             return FhirResult.Outcome(new FhirIssue(ErrorCatalogue.NotFound, $"{type}/{id} has no version '{vid}'; version ids are positive integers."));
         }
 
-        var stored = await store.ReadVersionAsync(type, id, version, cancellationToken);
+        var stored = await store.ReadVersionAsync(type, id, version, CallerScope.Of(user), cancellationToken);
         return Answer(stored, $"{type}/{id}/_history/{vid}");
     }
 
-    public static async Task<FhirResult> HistoryAsync(string type, string id, HttpRequest request, IResourceStore store, CancellationToken cancellationToken)
+    public static async Task<FhirResult> HistoryAsync(string type, string id, HttpRequest request, ClaimsPrincipal user, IResourceStore store, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(store);
-        var versions = await store.HistoryAsync(type, id, cancellationToken);
+        var versions = await store.HistoryAsync(type, id, CallerScope.Of(user), cancellationToken);
         if (versions.Count == 0)
         {
             return FhirResult.Outcome(new FhirIssue(ErrorCatalogue.NotFound, $"{type}/{id} is not known."));
@@ -174,7 +180,8 @@ public static class ResourceEndpoints
         var ifNoneExist = request.Headers["If-None-Exist"].ToString();
         if (ifNoneExist.Length > 0)
         {
-            if (search.TryParseSearch(type, QueryHelpers.ParseQuery(ifNoneExist), strict: true, out condition, out var conditionIssues))
+            // Conditional create runs under the write policy (ingest, admin), whose callers are unscoped.
+            if (search.TryParseSearch(type, QueryHelpers.ParseQuery(ifNoneExist), DataScope.Unrestricted, strict: true, out condition, out var conditionIssues))
             {
                 condition = condition! with { Query = condition.Query with { Count = 2, Offset = 0 } };
             }

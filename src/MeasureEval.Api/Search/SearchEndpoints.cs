@@ -1,5 +1,7 @@
 using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Fhir;
+using System.Security.Claims;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Http;
@@ -27,10 +29,10 @@ public static class SearchEndpoints
         return app;
     }
 
-    public static Task<FhirResult> SearchAsync(string type, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken) =>
-        RunAsync(type, request.Query, request, store, search, cancellationToken);
+    public static Task<FhirResult> SearchAsync(string type, HttpRequest request, ClaimsPrincipal user, IResourceStore store, SearchService search, CancellationToken cancellationToken) =>
+        RunAsync(type, request.Query, request, CallerScope.Of(user), store, search, cancellationToken);
 
-    public static async Task<FhirResult> SearchPostAsync(string type, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken)
+    public static async Task<FhirResult> SearchPostAsync(string type, HttpRequest request, ClaimsPrincipal user, IResourceStore store, SearchService search, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(request);
         var parameters = request.Query.ToList();
@@ -40,13 +42,13 @@ public static class SearchEndpoints
             parameters.AddRange(form);
         }
 
-        return await RunAsync(type, parameters, request, store, search, cancellationToken);
+        return await RunAsync(type, parameters, request, CallerScope.Of(user), store, search, cancellationToken);
     }
 
     private static async Task<FhirResult> RunAsync(
-        string type, IEnumerable<KeyValuePair<string, StringValues>> parameters, HttpRequest request, IResourceStore store, SearchService search, CancellationToken cancellationToken)
+        string type, IEnumerable<KeyValuePair<string, StringValues>> parameters, HttpRequest request, DataScope scope, IResourceStore store, SearchService search, CancellationToken cancellationToken)
     {
-        if (!search.TryParseSearch(type, parameters, FhirPrefer.Of(request).StrictHandling, out var parsed, out var issues))
+        if (!search.TryParseSearch(type, parameters, scope, FhirPrefer.Of(request).StrictHandling, out var parsed, out var issues))
         {
             return FhirResult.Outcome(issues);
         }

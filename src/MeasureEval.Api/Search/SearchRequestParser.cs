@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Text.RegularExpressions;
 using MeasureEval.Api.Errors;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Microsoft.Extensions.Primitives;
 
@@ -21,6 +22,7 @@ public static partial class SearchRequestParser
     public static bool TryParse(
         string resourceType,
         IEnumerable<KeyValuePair<string, StringValues>> parameters,
+        DataScope scope,
         SearchOptions options,
         bool strict,
         out ParsedSearch? parsed,
@@ -138,6 +140,7 @@ public static partial class SearchRequestParser
 
         var query = new SearchQuery(resourceType)
         {
+            Scope = scope,
             Ids = ids is null ? null : [.. ids.Order(StringComparer.Ordinal)],
             LastUpdated = ranges.Count > 0 ? ranges : null,
             LastUpdatedNotIn = excluded.Count > 0 ? excluded : null,

@@ -2,6 +2,7 @@ using System.Globalization;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Microsoft.Extensions.Options;
 using Microsoft.Extensions.Primitives;
@@ -11,8 +12,8 @@ namespace MeasureEval.Api.Search;
 /// <summary>Parses a search, runs it against a store or a write session, and builds the searchset Bundle with paging links.</summary>
 public sealed class SearchService(IOptions<SearchOptions> options)
 {
-    public bool TryParseSearch(string resourceType, IEnumerable<KeyValuePair<string, StringValues>> parameters, bool strict, out ParsedSearch? parsed, out IReadOnlyList<FhirIssue> issues) =>
-        SearchRequestParser.TryParse(resourceType, parameters, options.Value, strict, out parsed, out issues);
+    public bool TryParseSearch(string resourceType, IEnumerable<KeyValuePair<string, StringValues>> parameters, DataScope scope, bool strict, out ParsedSearch? parsed, out IReadOnlyList<FhirIssue> issues) =>
+        SearchRequestParser.TryParse(resourceType, parameters, scope, options.Value, strict, out parsed, out issues);
 
     public static async Task<SearchResult> RunAsync(ParsedSearch parsed, Func<SearchQuery, CancellationToken, Task<SearchResult>> run, CancellationToken cancellationToken)
     {

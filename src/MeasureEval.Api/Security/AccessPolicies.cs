@@ -30,8 +30,8 @@ public static class AccessPolicies
         ArgumentNullException.ThrowIfNull(options);
         options.FallbackPolicy = new AuthorizationPolicyBuilder().RequireAuthenticatedUser().Build();
         options.AddPolicy(Write, p => p.RequireRole(IngestRole, AdminRole));
-        // Payer tokens are refused on patient data until payer scoping filters the store; refusing is the safe side.
-        options.AddPolicy(PatientData, p => p.RequireRole(AnalystRole, AdminRole));
+        // A payer is admitted only with a usable payer claim: the store then answers within its members (CallerScope).
+        options.AddPolicy(PatientData, p => p.RequireRole(AnalystRole, PayerRole, AdminRole).RequireAssertion(c => CallerScope.TryOf(c.User, out _)));
         options.AddPolicy(Definitions, p => p.RequireRole(IngestRole, AnalystRole, PayerRole, AdminRole));
         options.AddPolicy(Manage, p => p.RequireRole(AdminRole));
     }

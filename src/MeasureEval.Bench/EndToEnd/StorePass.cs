@@ -41,7 +41,7 @@ internal static class StorePass
         var evaluator = new MeasureEvaluator(repository, new StoreRecordSource(resourceStore));
 
         // Warm-up outside the clock: first-use costs (JIT, SQLite open, UCUM tables) are not per-patient work.
-        await foreach (var warm in resourceStore.StreamPatientFactsAsync(null, CancellationToken.None))
+        await foreach (var warm in resourceStore.StreamPatientFactsAsync(null, MeasureEval.Core.Security.DataScope.Unrestricted, CancellationToken.None))
         {
             evaluator.EvaluateAll(measures, warm, period);
             break;
@@ -57,7 +57,7 @@ internal static class StorePass
         if (mode == "stream")
         {
             long facts = 0;
-            await foreach (var p in resourceStore.StreamPatientFactsAsync(null, CancellationToken.None))
+            await foreach (var p in resourceStore.StreamPatientFactsAsync(null, MeasureEval.Core.Security.DataScope.Unrestricted, CancellationToken.None))
             {
                 facts += p.Facts.Count;
                 patients++;
@@ -67,7 +67,7 @@ internal static class StorePass
         }
         else
         {
-            var summaries = await new BatchEvaluation(evaluator, measures, period).RunAsync(resourceStore.StreamPatientFactsAsync(null, CancellationToken.None), null, null, CancellationToken.None);
+            var summaries = await new BatchEvaluation(evaluator, measures, period).RunAsync(resourceStore.StreamPatientFactsAsync(null, MeasureEval.Core.Security.DataScope.Unrestricted, CancellationToken.None), null, null, CancellationToken.None);
             patients = summaries[0].PatientsEvaluated;
         }
 

@@ -57,7 +57,7 @@ internal static class StoreWriteStreamBench
             var timer = Stopwatch.StartNew();
             var cpu = Process.GetCurrentProcess().TotalProcessorTime;
             long patients = 0, facts = 0;
-            await foreach (var entry in store.StreamPatientFactsAsync(null, default))
+            await foreach (var entry in store.StreamPatientFactsAsync(null, MeasureEval.Core.Security.DataScope.Unrestricted, default))
             {
                 patients++;
                 facts += entry.Facts.Count + entry.Coverages.Count + (entry.Demographics is null ? 0 : 1);

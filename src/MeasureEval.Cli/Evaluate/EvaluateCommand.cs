@@ -107,7 +107,7 @@ internal static class EvaluateCommand
                     }
 
                     await resourceStore!.InitializeAsync(cancellationToken).ConfigureAwait(false);
-                    patients = resourceStore.StreamPatientFactsAsync(null, cancellationToken);
+                    patients = resourceStore.StreamPatientFactsAsync(null, MeasureEval.Core.Security.DataScope.Unrestricted, cancellationToken);
                     total = 0;
                 }
 

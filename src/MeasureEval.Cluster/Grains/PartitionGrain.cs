@@ -39,8 +39,8 @@ internal sealed partial class PartitionGrain(
 
         // Everyone: only this partition's rows of the index. A Group: only its members that fall in this partition.
         var patients = request.PatientIds is null
-            ? store.StreamPartitionFactsAsync(partition, request.Partitions, cancellationToken)
-            : store.StreamPatientFactsAsync([.. request.PatientIds.Where(id => PatientPartitioner.PartitionOf(id, request.Partitions) == partition)], cancellationToken);
+            ? store.StreamPartitionFactsAsync(partition, request.Partitions, request.Scope, cancellationToken)
+            : store.StreamPatientFactsAsync([.. request.PatientIds.Where(id => PatientPartitioner.PartitionOf(id, request.Partitions) == partition)], request.Scope, cancellationToken);
         var batch = new List<PatientFacts>(BatchSize);
         await foreach (var patient in patients)
         {

@@ -1,5 +1,6 @@
 using MeasureEval.Cluster.Grains;
 using MeasureEval.Cluster.Partitions;
+using MeasureEval.Core.Security;
 using MeasureEval.Engine;
 using Microsoft.Extensions.Options;
 
@@ -12,17 +13,21 @@ public sealed class ClusterEvaluation(IGrainFactory grains, IOptions<MeasureClus
     public const string ProgressUnit = "partitions";
 
     /// <summary>
-    /// Evaluates the population (everyone, or <paramref name="patientIds"/>) partitioned over the live nodes. With
+    /// Evaluates the population (everyone in <paramref name="scope"/>, or <paramref name="patientIds"/>) partitioned over the live nodes. With
     /// <paramref name="progress"/>, reports 0 of N partitions at the start and then each partition result as it reaches the coordinator.
     /// </summary>
     public async System.Threading.Tasks.Task<(IReadOnlyList<PopulationSummary> Summaries, ClusterRunResult Run)> SummarizeAsync(
-        IReadOnlyList<MeasureDefinition> measures, MeasurementPeriod period, IReadOnlyCollection<string>? patientIds, string? practitioner, bool keepSubjects,
+        IReadOnlyList<MeasureDefinition> measures, MeasurementPeriod period, IReadOnlyCollection<string>? patientIds, string? practitioner, bool keepSubjects, DataScope scope,
         IProgress<EvaluationProgress>? progress = null)
     {
         ArgumentNullException.ThrowIfNull(measures);
         ArgumentNullException.ThrowIfNull(period);
+        ArgumentNullException.ThrowIfNull(scope);
+
+        // The partitions rebuild the scope from the payer id, narrowed to the request's period (ClusterEvaluationRequest.Scope).
         var request = new ClusterEvaluationRequest(
-            [.. measures.Select(m => m.Id)], period.Start, period.End, patientIds?.ToArray(), practitioner, keepSubjects, options.Value.Partitions);
+            [.. measures.Select(m => m.Id)], period.Start, period.End, patientIds?.ToArray(), practitioner, keepSubjects, options.Value.Partitions,
+            scope.PayerOrganizationId);
         var coordinator = grains.GetGrain<IEvaluationCoordinatorGrain>(Guid.NewGuid());
         ClusterRunResult run;
         if (progress is null)

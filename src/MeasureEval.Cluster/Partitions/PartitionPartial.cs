@@ -1,3 +1,4 @@
+using MeasureEval.Core.Security;
 using MeasureEval.Engine;
 
 namespace MeasureEval.Cluster.Partitions;
@@ -11,7 +12,12 @@ public sealed record ClusterEvaluationRequest(
     [property: Id(3)] IReadOnlyList<string>? PatientIds,
     [property: Id(4)] string? Practitioner,
     [property: Id(5)] bool KeepSubjects,
-    [property: Id(6)] int Partitions);
+    [property: Id(6)] int Partitions,
+    [property: Id(7)] string? PayerOrganizationId = null)
+{
+    /// <summary>The caller's scope: a payer's members during the period, or everyone.</summary>
+    public DataScope Scope => PayerOrganizationId is null ? DataScope.Unrestricted : DataScope.ForPayer(PayerOrganizationId).During(PeriodStart, PeriodEnd);
+}
 
 /// <summary>One measure's aggregate over some patients, in a form that ships between nodes and adds up exactly.</summary>
 [GenerateSerializer]

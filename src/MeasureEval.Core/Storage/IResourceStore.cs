@@ -1,5 +1,6 @@
 using Hl7.Fhir.Model;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Security;
 
 namespace MeasureEval.Core.Storage;
 
@@ -7,6 +8,10 @@ namespace MeasureEval.Core.Storage;
 /// The durable FHIR store: versioned resources, their history, search, and the per-patient
 /// evaluation index kept at write time. Implementations: SQLite (default) and PostgreSQL.
 /// </summary>
+/// <remarks>
+/// Every read takes a <see cref="DataScope"/>: what lies outside it answers exactly as if it were not stored (null, no
+/// versions, no match), so a caller cannot tell another payer's patient from an unknown id. Write sessions are unscoped.
+/// </remarks>
 public interface IResourceStore
 {
     /// <summary>Creates or migrates the schema. Safe to call on every start.</summary>
@@ -15,15 +20,15 @@ public interface IResourceStore
     /// <summary>True when the store answers a trivial query.</summary>
     System.Threading.Tasks.Task<bool> IsReadyAsync(CancellationToken cancellationToken);
 
-    /// <summary>The current version (a deleted resource comes back with <see cref="StoredResource.Deleted"/>), or null if never stored.</summary>
-    System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, CancellationToken cancellationToken);
+    /// <summary>The current version (a deleted resource comes back with <see cref="StoredResource.Deleted"/>), or null if never stored or outside the scope.</summary>
+    System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, DataScope scope, CancellationToken cancellationToken);
 
-    System.Threading.Tasks.Task<StoredResource?> ReadVersionAsync(string resourceType, string id, int versionId, CancellationToken cancellationToken);
+    System.Threading.Tasks.Task<StoredResource?> ReadVersionAsync(string resourceType, string id, int versionId, DataScope scope, CancellationToken cancellationToken);
 
-    /// <summary>Every version, newest first (deletions included).</summary>
-    System.Threading.Tasks.Task<IReadOnlyList<StoredResource>> HistoryAsync(string resourceType, string id, CancellationToken cancellationToken);
+    /// <summary>Every version in the scope, newest first (deletions included).</summary>
+    System.Threading.Tasks.Task<IReadOnlyList<StoredResource>> HistoryAsync(string resourceType, string id, DataScope scope, CancellationToken cancellationToken);
 
-    /// <summary>Current, not deleted resources matching the query.</summary>
+    /// <summary>Current, not deleted resources matching the query, within <see cref="SearchQuery.Scope"/>.</summary>
     System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken);
 
     /// <summary>
@@ -32,22 +37,25 @@ public interface IResourceStore
     /// </summary>
     System.Threading.Tasks.Task<IStoreSession> BeginWriteAsync(CancellationToken cancellationToken);
 
-    /// <summary>One patient's index entry, or null when nothing is stored for that patient.</summary>
-    System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, CancellationToken cancellationToken);
+    /// <summary>
+    /// One patient's index entry, or null when nothing is stored for that patient or the patient is outside the scope.
+    /// For a payer the entry keeps only the Coverages (and payor references) of that payer.
+    /// </summary>
+    System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, DataScope scope, CancellationToken cancellationToken);
 
     /// <summary>
-    /// Streams index entries in ascending patient id order: all patients when <paramref name="patientIds"/> is null,
-    /// otherwise just those (unknown ids are skipped). Memory does not grow with the population.
+    /// Streams index entries in ascending patient id order: all patients in the scope when <paramref name="patientIds"/>
+    /// is null, otherwise just those (unknown and out-of-scope ids are skipped). Memory does not grow with the population.
     /// </summary>
-    IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, CancellationToken cancellationToken);
+    IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, DataScope scope, CancellationToken cancellationToken);
 
     /// <summary>
     /// Streams the index entries of one patient partition (<see cref="Partitions.PatientPartitioner.PartitionOf"/> =
-    /// <paramref name="partition"/>) in ascending patient id order, reading only that partition's rows (a range of the
-    /// entries' stored partition key). The partitions 0 … <paramref name="partitionCount"/> − 1 are disjoint and together
-    /// are <see cref="StreamPatientFactsAsync"/> of everyone.
+    /// <paramref name="partition"/>) in the scope, in ascending patient id order, reading only that partition's rows (a
+    /// range of the entries' stored partition key). The partitions 0 … <paramref name="partitionCount"/> − 1 are disjoint
+    /// and together are <see cref="StreamPatientFactsAsync"/> of everyone in the scope.
     /// </summary>
-    IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(int partition, int partitionCount, CancellationToken cancellationToken);
+    IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(int partition, int partitionCount, DataScope scope, CancellationToken cancellationToken);
 }
 
 /// <summary>A write unit. Reads and searches through it see its own uncommitted writes (conditional create inside a transaction).</summary>
@@ -88,6 +96,9 @@ public sealed record WriteResult(StoredResource? Stored, bool Created, bool Vers
 /// </summary>
 public sealed record SearchQuery(string ResourceType)
 {
+    /// <summary>Whose data may match: required, so that no search forgets the caller.</summary>
+    public required DataScope Scope { get; init; }
+
     public IReadOnlyList<string>? Ids { get; init; }
 
     /// <summary>Half-open instant ranges [From, Until) that lastUpdated must fall in; a null bound is open.</summary>

@@ -5,6 +5,7 @@ using System.Runtime.CompilerServices;
 using System.Text;
 using MeasureEval.Core.Index;
 using MeasureEval.Core.Partitions;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Microsoft.Extensions.Logging;
 
@@ -117,6 +118,11 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
             Logger.LogInformation("Evaluation index rebuilt in format {IndexFormat}", PatientFactsCodec.Format);
         }
 
+        if (await session.EnsurePayerLinksAsync(cancellationToken).ConfigureAwait(false))
+        {
+            Logger.LogInformation("Payer memberships derived from the stored Coverage and Group resources");
+        }
+
         await session.CommitAsync(cancellationToken).ConfigureAwait(false);
     }
 
@@ -147,32 +153,63 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         }
     }
 
-    public async System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, CancellationToken cancellationToken)
+    public async System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, DataScope scope, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(scope);
         await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
         await using var command = Command(connection, null, StoreSql.ReadCurrent, resourceType, id);
-        return await ReadOneAsync(command, resourceType, id, cancellationToken).ConfigureAwait(false);
+        var stored = await ReadOneAsync(command, resourceType, id, cancellationToken).ConfigureAwait(false);
+        return stored is null || await new ScopeCheck(connection, scope).VisibleAsync(stored, cancellationToken).ConfigureAwait(false) ? stored : null;
     }
 
-    public async System.Threading.Tasks.Task<StoredResource?> ReadVersionAsync(string resourceType, string id, int versionId, CancellationToken cancellationToken)
+    public async System.Threading.Tasks.Task<StoredResource?> ReadVersionAsync(string resourceType, string id, int versionId, DataScope scope, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(scope);
         await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
         await using var command = Command(connection, null, StoreSql.ReadVersion, resourceType, id, versionId);
-        return await ReadOneAsync(command, resourceType, id, cancellationToken).ConfigureAwait(false);
+        var stored = await ReadOneAsync(command, resourceType, id, cancellationToken).ConfigureAwait(false);
+        return stored is null || await new ScopeCheck(connection, scope).VisibleAsync(stored, cancellationToken).ConfigureAwait(false) ? stored : null;
     }
 
-    public async System.Threading.Tasks.Task<IReadOnlyList<StoredResource>> HistoryAsync(string resourceType, string id, CancellationToken cancellationToken)
+    public async System.Threading.Tasks.Task<IReadOnlyList<StoredResource>> HistoryAsync(string resourceType, string id, DataScope scope, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(scope);
         await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
-        await using var command = Command(connection, null, StoreSql.History, resourceType, id);
         var versions = new List<StoredResource>();
-        await using var reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
-        while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+        await using (var command = Command(connection, null, StoreSql.History, resourceType, id))
+        await using (var reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false))
         {
-            versions.Add(ToStored(reader, resourceType, id));
+            while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
+            {
+                versions.Add(ToStored(reader, resourceType, id));
+            }
         }
 
-        return versions;
+        if (scope.IsUnrestricted)
+        {
+            return versions;
+        }
+
+        // Each version is judged by what it says (a resource moved to another patient shows each payer its own part);
+        // a deletion by the version it deleted. Oldest first, so that body is at hand.
+        var check = new ScopeCheck(connection, scope);
+        var visible = new List<StoredResource>(versions.Count);
+        var previousVisible = false;
+        for (var i = versions.Count - 1; i >= 0; i--)
+        {
+            if (versions[i].Json is { } json)
+            {
+                previousVisible = await check.VisibleAsync(json, cancellationToken).ConfigureAwait(false);
+            }
+
+            if (previousVisible)
+            {
+                visible.Add(versions[i]);
+            }
+        }
+
+        visible.Reverse();
+        return visible;
     }
 
     public async System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken)
@@ -203,25 +240,34 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         }
     }
 
-    public async System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, CancellationToken cancellationToken)
+    public async System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, DataScope scope, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(patientId);
+        ArgumentNullException.ThrowIfNull(scope);
         await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        if (!await new ScopeCheck(connection, scope).IsMemberAsync(patientId, cancellationToken).ConfigureAwait(false))
+        {
+            return null;
+        }
+
         await using var command = Command(connection, null, StoreSql.ReadIndexEntry, patientId);
         await using var reader = await command.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false);
         return await reader.ReadAsync(cancellationToken).ConfigureAwait(false) && !reader.IsDBNull(0)
-            ? PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0))
+            ? ScopeCheck.Narrow(PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0)), scope)
             : null;
     }
 
     public async IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(
-        IReadOnlyCollection<string>? patientIds, [EnumeratorCancellation] CancellationToken cancellationToken)
+        IReadOnlyCollection<string>? patientIds, DataScope scope, [EnumeratorCancellation] CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(scope);
         await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
         if (patientIds is null)
         {
-            await using var all = Command(connection, null, StoreSql.StreamIndex);
-            await foreach (var facts in ReadEntriesAsync(all, cancellationToken).ConfigureAwait(false))
+            var values = new List<object?>();
+            var sql = $"SELECT facts FROM patient_index p WHERE facts IS NOT NULL{ScopeCheck.MemberFilter(scope, "p.patient_id", values)} ORDER BY patient_id";
+            await using var all = Command(connection, null, sql, [.. values]);
+            await foreach (var facts in ReadEntriesAsync(all, scope, cancellationToken).ConfigureAwait(false))
             {
                 yield return facts;
             }
@@ -233,15 +279,16 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         var sorted = patientIds.Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal).ToArray();
         foreach (var chunk in sorted.Chunk(PatientIdChunk))
         {
-            var sql = new StringBuilder("SELECT facts FROM patient_index WHERE facts IS NOT NULL AND patient_id IN (");
+            var values = new List<object?>(chunk);
+            var sql = new StringBuilder("SELECT facts FROM patient_index p WHERE facts IS NOT NULL AND patient_id IN (");
             for (var i = 0; i < chunk.Length; i++)
             {
                 sql.Append(i == 0 ? "@p" : ", @p").Append(i.ToString(CultureInfo.InvariantCulture));
             }
 
-            sql.Append(") ORDER BY patient_id");
-            await using var some = Command(connection, null, sql.ToString(), chunk);
-            await foreach (var facts in ReadEntriesAsync(some, cancellationToken).ConfigureAwait(false))
+            sql.Append(')').Append(ScopeCheck.MemberFilter(scope, "p.patient_id", values)).Append(" ORDER BY patient_id");
+            await using var some = Command(connection, null, sql.ToString(), [.. values]);
+            await foreach (var facts in ReadEntriesAsync(some, scope, cancellationToken).ConfigureAwait(false))
             {
                 yield return facts;
             }
@@ -249,12 +296,19 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
     }
 
     public async IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(
-        int partition, int partitionCount, [EnumeratorCancellation] CancellationToken cancellationToken)
+        int partition, int partitionCount, DataScope scope, [EnumeratorCancellation] CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(scope);
         var (from, until) = PatientPartitioner.KeyRange(partition, partitionCount);
+        var values = new List<object?> { from, until };
+        var sql = $"""
+            SELECT facts FROM patient_index p
+            WHERE partition_key >= @p0 AND partition_key < @p1 AND facts IS NOT NULL{ScopeCheck.MemberFilter(scope, "p.patient_id", values)}
+            ORDER BY patient_id
+            """;
         await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
-        await using var command = Command(connection, null, StoreSql.StreamPartition, from, until);
-        await foreach (var facts in ReadEntriesAsync(command, cancellationToken).ConfigureAwait(false))
+        await using var command = Command(connection, null, sql, [.. values]);
+        await foreach (var facts in ReadEntriesAsync(command, scope, cancellationToken).ConfigureAwait(false))
         {
             yield return facts;
         }
@@ -272,6 +326,7 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         DbConnection connection, DbTransaction? transaction, SearchQuery query, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(query);
+        ArgumentNullException.ThrowIfNull(query.Scope);
         ArgumentOutOfRangeException.ThrowIfNegative(query.Count);
         ArgumentOutOfRangeException.ThrowIfNegative(query.Offset);
         var values = new List<object?> { query.ResourceType };
@@ -321,6 +376,8 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         {
             where.Append(" AND r.patient_id = ").Append(Next(patientId));
         }
+
+        where.Append(ScopeCheck.ResourceFilter(query.Scope, query.ResourceType, values));
 
         if (query.Identifiers is { } tokens)
         {
@@ -402,12 +459,12 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         reader.GetBoolean(2),
         reader.IsDBNull(3) ? null : reader.GetString(3));
 
-    private static async IAsyncEnumerable<PatientFacts> ReadEntriesAsync(DbCommand command, [EnumeratorCancellation] CancellationToken cancellationToken)
+    private static async IAsyncEnumerable<PatientFacts> ReadEntriesAsync(DbCommand command, DataScope scope, [EnumeratorCancellation] CancellationToken cancellationToken)
     {
         await using var reader = await command.ExecuteReaderAsync(CommandBehavior.SequentialAccess, cancellationToken).ConfigureAwait(false);
         while (await reader.ReadAsync(cancellationToken).ConfigureAwait(false))
         {
-            yield return PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0));
+            yield return ScopeCheck.Narrow(PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0)), scope);
         }
     }
 }

@@ -92,13 +92,19 @@ internal sealed class SqlStoreSession : IStoreSession
         var now = Now();
         _resourceWrites++;
         var lastUpdated = now.ToUnixTimeMilliseconds();
-        await RunAsync(
-            [
-                (StoreSql.InsertVersion, [resourceType, id, version, lastUpdated, true, null]),
-                (StoreSql.UpsertCurrent, [resourceType, id, version, lastUpdated, true, null, null]),
-                (StoreSql.DeleteIdentifiers, [resourceType, id]),
-            ],
-            cancellationToken).ConfigureAwait(false);
+        var statements = new List<(string, object?[])>
+        {
+            (StoreSql.InsertVersion, [resourceType, id, version, lastUpdated, true, null]),
+            (StoreSql.UpsertCurrent, [resourceType, id, version, lastUpdated, true, null, null]),
+            (StoreSql.DeleteIdentifiers, [resourceType, id]),
+        };
+        if (PayerLinks.IsOwnedType(resourceType))
+        {
+            statements.Add((StoreSql.DeletePayerMembers, [resourceType, id]));
+            statements.Add((StoreSql.DeletePayerResources, [resourceType, id]));
+        }
+
+        await RunAsync(statements, cancellationToken).ConfigureAwait(false);
         if (current.IndexPatient is { } patientId)
         {
             (await EntryAsync(patientId, cancellationToken).ConfigureAwait(false)).Remove(resourceType, id);
@@ -213,6 +219,65 @@ internal sealed class SqlStoreSession : IStoreSession
             cancellationToken).ConfigureAwait(false);
     }
 
+    /// <summary>
+    /// Derives the payer tables from the current Coverage and Group resources once, after the script that created them
+    /// (stores written before payer scoping existed); true when it did.
+    /// </summary>
+    internal async System.Threading.Tasks.Task<bool> EnsurePayerLinksAsync(CancellationToken cancellationToken)
+    {
+        EnsureOpen();
+        if (await PayerLinksDerivedAsync(cancellationToken).ConfigureAwait(false))
+        {
+            return false;
+        }
+
+        await LockForRebuildAsync(cancellationToken).ConfigureAwait(false);
+        if (await PayerLinksDerivedAsync(cancellationToken).ConfigureAwait(false))
+        {
+            return false;
+        }
+
+        var statements = new List<(string, object?[])> { ("DELETE FROM payer_members", []), ("DELETE FROM payer_resources", []) };
+        await using (var reader = await _store.OpenReaderAsync(cancellationToken).ConfigureAwait(false))
+        await using (var select = SqlResourceStore.Command(reader, null, StoreSql.CurrentOwnedResources))
+        await using (var rows = await select.ExecuteReaderAsync(cancellationToken).ConfigureAwait(false))
+        {
+            while (await rows.ReadAsync(cancellationToken).ConfigureAwait(false))
+            {
+                AddPayerLinks(statements, FhirJson.Parse<Resource>(rows.GetString(2)), rows.GetString(0), rows.GetString(1));
+                if (statements.Count >= 1000)
+                {
+                    await RunAsync(statements, cancellationToken).ConfigureAwait(false);
+                    statements.Clear();
+                }
+            }
+        }
+
+        statements.Add(("INSERT INTO payer_scope_state (derived) VALUES (1)", []));
+        await RunAsync(statements, cancellationToken).ConfigureAwait(false);
+        return true;
+    }
+
+    private async System.Threading.Tasks.Task<bool> PayerLinksDerivedAsync(CancellationToken cancellationToken) =>
+        await QueryAsync(
+            "SELECT COUNT(*) FROM payer_scope_state",
+            [],
+            async (reader, ct) => await reader.ReadAsync(ct).ConfigureAwait(false) && Convert.ToInt64(reader.GetValue(0), CultureInfo.InvariantCulture) > 0,
+            cancellationToken).ConfigureAwait(false);
+
+    private static void AddPayerLinks(List<(string, object?[])> statements, Resource resource, string type, string id)
+    {
+        foreach (var owner in PayerLinks.OwnersOf(resource))
+        {
+            statements.Add((StoreSql.InsertPayerResource, [type, id, owner]));
+        }
+
+        foreach (var member in PayerLinks.MembershipsOf(resource))
+        {
+            statements.Add((StoreSql.InsertPayerMember, [member.PayerId, member.PatientId, type, id, member.PeriodStart, member.PeriodEnd]));
+        }
+    }
+
     private async System.Threading.Tasks.Task<int?> IndexFormatAsync(CancellationToken cancellationToken) =>
         await QueryAsync<int?>(
             StoreSql.ReadIndexFormat,
@@ -255,6 +320,18 @@ internal sealed class SqlStoreSession : IStoreSession
         foreach (var (system, value) in ResourceKeys.IdentifiersOf(resource))
         {
             statements.Add((StoreSql.InsertIdentifier, [type, id, system, value]));
+        }
+
+        if (PayerLinks.IsOwnedType(type))
+        {
+            // Memberships follow the current version only: the previous version's rows go in the same transaction.
+            if (version > 1)
+            {
+                statements.Add((StoreSql.DeletePayerMembers, [type, id]));
+                statements.Add((StoreSql.DeletePayerResources, [type, id]));
+            }
+
+            AddPayerLinks(statements, resource, type, id);
         }
 
         await RunAsync(statements, cancellationToken).ConfigureAwait(false);

@@ -42,12 +42,6 @@ internal static class StoreSql
 
     public const string StreamIndex = "SELECT facts FROM patient_index WHERE facts IS NOT NULL ORDER BY patient_id";
 
-    /// <summary>One partition's entries: [@p0, @p1) of partition_key (<c>PatientPartitioner.KeyRange</c>), in patient id order.</summary>
-    public const string StreamPartition = """
-        SELECT facts FROM patient_index
-        WHERE partition_key >= @p0 AND partition_key < @p1 AND facts IS NOT NULL ORDER BY patient_id
-        """;
-
     /// <summary>(patient_id, facts, partition_key).</summary>
     public const string UpsertIndexEntry = """
         INSERT INTO patient_index (patient_id, facts, partition_key) VALUES (@p0, @p1, @p2)
@@ -71,5 +65,41 @@ internal static class StoreSql
             WHERE deleted = FALSE AND version > 0 AND type IN ({string.Join(", ", Enumerable.Range(0, typeCount).Select(i => "@p" + i.ToString(System.Globalization.CultureInfo.InvariantCulture)))})
             ORDER BY patient_id, type, id) r
         JOIN resource_versions v ON v.type = r.type AND v.id = r.id AND v.version = r.version
+        """;
+
+    /// <summary>(source_type, source_id).</summary>
+    public const string DeletePayerMembers = "DELETE FROM payer_members WHERE source_type = @p0 AND source_id = @p1";
+
+    /// <summary>(payer_id, patient_id, source_type, source_id, period_start, period_end).</summary>
+    public const string InsertPayerMember = """
+        INSERT INTO payer_members (payer_id, patient_id, source_type, source_id, period_start, period_end)
+        VALUES (@p0, @p1, @p2, @p3, @p4, @p5)
+        """;
+
+    /// <summary>(type, id).</summary>
+    public const string DeletePayerResources = "DELETE FROM payer_resources WHERE type = @p0 AND id = @p1";
+
+    /// <summary>(type, id, payer_id).</summary>
+    public const string InsertPayerResource = "INSERT INTO payer_resources (type, id, payer_id) VALUES (@p0, @p1, @p2)";
+
+    /// <summary>(payer_id, patient_id) → a row when the patient is the payer's member in any period.</summary>
+    public const string IsMember = "SELECT 1 FROM payer_members WHERE payer_id = @p0 AND patient_id = @p1 LIMIT 1";
+
+    /// <summary>(payer_id, patient_id, period start, period end) → a row when a membership overlaps the period.</summary>
+    public const string IsMemberDuring = """
+        SELECT 1 FROM payer_members WHERE payer_id = @p0 AND patient_id = @p1
+            AND (period_start IS NULL OR period_start <= @p3) AND (period_end IS NULL OR period_end >= @p2) LIMIT 1
+        """;
+
+    /// <summary>(type, id, version) → the newest body at or before that version (what a deletion deleted).</summary>
+    public const string LastBodyAtOrBefore = """
+        SELECT json FROM resource_versions WHERE type = @p0 AND id = @p1 AND version <= @p2 AND json IS NOT NULL
+        ORDER BY version DESC LIMIT 1
+        """;
+
+    public const string CurrentOwnedResources = """
+        SELECT r.type, r.id, v.json FROM resources r
+        JOIN resource_versions v ON v.type = r.type AND v.id = r.id AND v.version = r.version
+        WHERE r.type IN ('Coverage', 'Group') AND r.deleted = FALSE AND r.version > 0
         """;
 }

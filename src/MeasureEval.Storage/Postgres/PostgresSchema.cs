@@ -47,6 +47,28 @@ internal static class PostgresSchema
         """
         CREATE TABLE index_state (format integer NOT NULL);
         """,
+        """
+        -- Payer scoping: memberships and payer-owned resources derived from current Coverage and Group versions, kept in
+        -- the write transaction. payer_scope_state stays empty until the rows of resources stored before this script
+        -- have been derived (SqlStoreSession.EnsurePayerLinksAsync, run by InitializeAsync).
+        CREATE TABLE payer_members (
+            payer_id text COLLATE "C" NOT NULL,
+            patient_id text COLLATE "C" NOT NULL,
+            source_type text COLLATE "C" NOT NULL,
+            source_id text COLLATE "C" NOT NULL,
+            period_start text COLLATE "C",
+            period_end text COLLATE "C"
+        );
+        CREATE INDEX payer_members_by_payer ON payer_members (payer_id, patient_id);
+        CREATE INDEX payer_members_by_source ON payer_members (source_type, source_id);
+        CREATE TABLE payer_resources (
+            type text COLLATE "C" NOT NULL,
+            id text COLLATE "C" NOT NULL,
+            payer_id text COLLATE "C" NOT NULL,
+            PRIMARY KEY (type, id, payer_id)
+        );
+        CREATE TABLE payer_scope_state (derived integer NOT NULL);
+        """,
         $"""
         ALTER TABLE patient_index ADD COLUMN partition_key bigint;
         {PartitionKeyBackfill}

@@ -47,6 +47,28 @@ internal static class SqliteSchema
         """
         CREATE TABLE index_state (format INTEGER NOT NULL);
         """,
+        """
+        -- Payer scoping: memberships and payer-owned resources derived from current Coverage and Group versions, kept in
+        -- the write transaction. payer_scope_state stays empty until the rows of resources stored before this script
+        -- have been derived (SqlStoreSession.EnsurePayerLinksAsync, run by InitializeAsync).
+        CREATE TABLE payer_members (
+            payer_id TEXT NOT NULL,
+            patient_id TEXT NOT NULL,
+            source_type TEXT NOT NULL,
+            source_id TEXT NOT NULL,
+            period_start TEXT,
+            period_end TEXT
+        );
+        CREATE INDEX payer_members_by_payer ON payer_members (payer_id, patient_id);
+        CREATE INDEX payer_members_by_source ON payer_members (source_type, source_id);
+        CREATE TABLE payer_resources (
+            type TEXT NOT NULL,
+            id TEXT NOT NULL,
+            payer_id TEXT NOT NULL,
+            PRIMARY KEY (type, id, payer_id)
+        ) WITHOUT ROWID;
+        CREATE TABLE payer_scope_state (derived INTEGER NOT NULL);
+        """,
         $"""
         ALTER TABLE patient_index ADD COLUMN partition_key INTEGER;
         {PartitionKeyBackfill}

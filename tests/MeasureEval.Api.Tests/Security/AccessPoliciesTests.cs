@@ -51,7 +51,7 @@ public sealed class AccessPoliciesTests(ApiFactory factory) : IClassFixture<ApiF
         var allowed = new Dictionary<string, string[]>
         {
             [AccessPolicies.Write] = [AccessPolicies.IngestRole, AccessPolicies.AdminRole],
-            [AccessPolicies.PatientData] = [AccessPolicies.AnalystRole, AccessPolicies.AdminRole],
+            [AccessPolicies.PatientData] = [AccessPolicies.AnalystRole, AccessPolicies.PayerRole, AccessPolicies.AdminRole],
             [AccessPolicies.Definitions] = Roles,
             [AccessPolicies.Manage] = [AccessPolicies.AdminRole],
         };

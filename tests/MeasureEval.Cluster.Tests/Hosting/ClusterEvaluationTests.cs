@@ -3,6 +3,7 @@ using System.Globalization;
 using System.Text.Json.Nodes;
 using Hl7.Fhir.Model;
 using MeasureEval.Cluster.Hosting;
+using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Storage;
@@ -127,10 +128,10 @@ public sealed class ClusterEvaluationTests(PostgresServer postgres, ITestOutputH
         var period = new MeasurementPeriod(new DateOnly(2026, 1, 1), new DateOnly(2026, 12, 31));
         var progress = new RecordingProgress();
 
-        var (summaries, run) = await host.Services.GetRequiredService<ClusterEvaluation>().SummarizeAsync(measures, period, null, null, false, progress);
+        var (summaries, run) = await host.Services.GetRequiredService<ClusterEvaluation>().SummarizeAsync(measures, period, null, null, false, DataScope.Unrestricted, progress);
 
         var single = await new PopulationEvaluator(new MeasureEvaluator(repository, new StoreRecordSource(store)))
-            .SummarizeAsync(store.StreamPatientFactsAsync(null, default), measures, period, false, default);
+            .SummarizeAsync(store.StreamPatientFactsAsync(null, DataScope.Unrestricted, default), measures, period, false, default);
         Assert.Equal(single.Select(s => (s.PatientsEvaluated, s.Counts.ToCounts())), summaries.Select(s => (s.PatientsEvaluated, s.Counts.ToCounts())), new CountsComparer());
         Assert.All(summaries, s => Assert.Equal(40, s.PatientsEvaluated));
         Assert.Equal(16, run.PartitionSilos.Count);
