@@ -2,6 +2,7 @@ using MeasureEval.Api.Analytics;
 using MeasureEval.Api.CareGaps;
 using MeasureEval.Api.Demo;
 using MeasureEval.Api.Hosting;
+using MeasureEval.Api.Jobs;
 using MeasureEval.Api.Logging;
 using MeasureEval.Api.Measures;
 using MeasureEval.Cluster.Hosting;
@@ -16,6 +17,7 @@ builder.Services.AddMeasureEvalSecurity();
 builder.Services.AddMeasureEvalMeasures();
 builder.Services.AddMeasureEvalAnalytics();
 builder.Services.AddMeasureEvalCareGaps();
+builder.Services.AddMeasureEvalJobs();
 builder.AddMeasureEvalCluster((services, cancellationToken) => services.GetRequiredService<MeasureCatalog>().GetAsync(cancellationToken));
 builder.Services.AddMeasureEvalDemo();
 
@@ -25,6 +27,7 @@ app.MapMeasureEndpoints();
 app.MapMeasureEvalApi();
 app.MapReportEndpoints();
 app.MapCareGapEndpoints();
+app.MapJobEndpoints();
 app.Run();
 
 /// <summary>Entry point; public so that tests can host it with WebApplicationFactory.</summary>

@@ -1,4 +1,5 @@
 using MeasureEval.Core.Storage;
+using MeasureEval.Storage.Common;
 using MeasureEval.Storage.Postgres;
 using MeasureEval.Storage.Sqlite;
 using Microsoft.Data.Sqlite;
@@ -22,12 +23,14 @@ public static class StorageServiceCollectionExtensions
         services.AddOptions<StorageOptions>().BindConfiguration(StorageOptions.SectionName).ValidateOnStart();
         services.TryAddEnumerable(ServiceDescriptor.Singleton<IValidateOptions<StorageOptions>, StorageOptionsValidator>());
         services.TryAddSingleton(TimeProvider.System);
-        services.TryAddSingleton<IResourceStore>(CreateStore);
+        services.TryAddSingleton<SqlResourceStore>(CreateStore);
+        services.TryAddSingleton<IResourceStore>(sp => sp.GetRequiredService<SqlResourceStore>());
+        services.TryAddSingleton<IJobStore>(sp => new SqlJobStore(sp.GetRequiredService<SqlResourceStore>()));
         services.AddHostedService<StorageInitializer>();
         return services;
     }
 
-    private static IResourceStore CreateStore(IServiceProvider services)
+    private static SqlResourceStore CreateStore(IServiceProvider services)
     {
         var options = services.GetRequiredService<IOptions<StorageOptions>>().Value;
         var timeProvider = services.GetRequiredService<TimeProvider>();

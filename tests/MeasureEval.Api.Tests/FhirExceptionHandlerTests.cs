@@ -55,6 +55,8 @@ public sealed class FhirExceptionHandlerTests(ApiFactory factory) : IClassFixtur
 
         public System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, DataScope scope, CancellationToken cancellationToken) => inner.GetPatientFactsAsync(patientId, scope, cancellationToken);
 
+        public System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken) => inner.CountPatientFactsAsync(cancellationToken);
+
         public IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, DataScope scope, CancellationToken cancellationToken) =>
             inner.StreamPatientFactsAsync(patientIds, scope, cancellationToken);
 

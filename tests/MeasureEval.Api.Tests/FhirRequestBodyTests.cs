@@ -103,6 +103,30 @@ public sealed class FhirRequestBodyTests(ApiFactory factory) : IClassFixture<Api
         Assert.Equal(["MEV-PARSE-008"], Codes(await ReadAsync<OperationOutcome>(response)));
     }
 
+    [Fact]
+    public async System.Threading.Tasks.Task Update_UnpairedSurrogateEscape_Returns400NotServerError()
+    {
+        // RFC 8259 section 8.2: a lone surrogate escape ("\ud800") is syntactically allowed but is no Unicode text;
+        // FHIR strings are Unicode (R4 datatypes.html#string), so the body is refused as malformed, never a 500.
+        var response = await _client.PutAsync("/Patient/surrogate-1", Json(Input("BadInput/unpaired-surrogate.json")));
+
+        Assert.Equal(HttpStatusCode.BadRequest, response.StatusCode);
+        Assert.Equal(["MEV-PARSE-001"], Codes(await ReadAsync<OperationOutcome>(response)));
+        Assert.Equal(HttpStatusCode.NotFound, (await _client.GetAsync("/Patient/surrogate-1")).StatusCode);
+    }
+
+    [Fact]
+    public async System.Threading.Tasks.Task Transaction_UnpairedSurrogateEscape_Returns400AndStoresNothing()
+    {
+        var before = await CountAsync("Patient");
+
+        var response = await _client.PostAsync("/", Json(Input("BadInput/unpaired-surrogate-transaction.json")));
+
+        Assert.Equal(HttpStatusCode.BadRequest, response.StatusCode);
+        Assert.Equal(["MEV-PARSE-001"], Codes(await ReadAsync<OperationOutcome>(response)));
+        Assert.Equal(before, await CountAsync("Patient"));
+    }
+
     private async Task<int> CountAsync(string type)
     {
         var bundle = await ReadAsync<Bundle>(await _client.GetAsync($"/{type}?_count=0"));

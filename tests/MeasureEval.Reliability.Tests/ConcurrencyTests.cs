@@ -1,33 +1,53 @@
 using System.Net;
 using System.Text.Json;
 using MeasureEval.Reliability.Tests.Support;
+using MeasureEval.Testing;
 
 namespace MeasureEval.Reliability.Tests;
 
 /// <summary>Eight ingest clients racing on the same and on different patients while a summary evaluation runs.</summary>
-public sealed class ConcurrencyTests : IClassFixture<ReliabilityApiFactory>
+public sealed class ConcurrencyTests : IClassFixture<ReliabilityApiFactory>, IClassFixture<PostgresServer>
 {
     private const int Clients = 8;
     private const int BundlesPerClient = 200;
     private const int SharedPatients = 25;
     private readonly ReliabilityApiFactory _factory;
+    private readonly PostgresServer _postgres;
 
-    public ConcurrencyTests(ReliabilityApiFactory factory) => _factory = factory;
+    public ConcurrencyTests(ReliabilityApiFactory factory, PostgresServer postgres)
+    {
+        _factory = factory;
+        _postgres = postgres;
+    }
 
     [Fact]
-    public async Task ConcurrentIngestAndEvaluation_EveryResourceOnceAndNo5xx()
+    public Task ConcurrentIngestAndEvaluation_EveryResourceOnceAndNo5xx() => RunScenarioAsync(_factory);
+
+    /// <summary>
+    /// PostgreSQL sessions run concurrently at READ COMMITTED: without the advisory lock on the ifNoneExist condition,
+    /// two clients both saw no shared patient and both created it.
+    /// </summary>
+    [SkippableFact]
+    public async Task ConcurrentIngestAndEvaluation_Postgres_EachConditionalPatientOnce()
     {
-        using var evaluator = _factory.Client();
+        Skip.IfNot(_postgres.IsAvailable, _postgres.UnavailableReason);
+        using var factory = ReliabilityApiFactory.OnPostgres(await _postgres.CreateSchemaAsync());
+        await RunScenarioAsync(factory);
+    }
+
+    private static async Task RunScenarioAsync(ReliabilityApiFactory factory)
+    {
+        using var evaluator = factory.Client();
         var measureId = await FirstMeasureIdAsync(evaluator);
         using var stop = new CancellationTokenSource();
         var evaluations = EvaluateLoopAsync(evaluator, measureId, stop.Token);
-        var ingests = Enumerable.Range(0, Clients).Select(c => Task.Run(() => IngestAsync(c))).ToArray();
+        var ingests = Enumerable.Range(0, Clients).Select(c => Task.Run(() => IngestAsync(factory, c))).ToArray();
         await Task.WhenAll(ingests);
         await stop.CancelAsync();
         var evaluated = await evaluations;
         Assert.True(evaluated > 0, "no evaluation ran during the ingest");
 
-        using var client = _factory.Client();
+        using var client = factory.Client();
         // Every client created the same shared patients by ifNoneExist: each must exist exactly once.
         for (var p = 0; p < SharedPatients; p++)
         {
@@ -40,9 +60,9 @@ public sealed class ConcurrencyTests : IClassFixture<ReliabilityApiFactory>
         Assert.Equal((Clients * BundlesPerClient * 3 / 4) + (Clients * BundlesPerClient / 4 * 3), await TotalAsync(client, "Observation?_count=0"));
     }
 
-    private async Task IngestAsync(int clientNumber)
+    private static async Task IngestAsync(ReliabilityApiFactory factory, int clientNumber)
     {
-        using var client = _factory.Client();
+        using var client = factory.Client();
         for (var b = 0; b < BundlesPerClient; b++)
         {
             // Three in four bundles race on a shared patient (ifNoneExist) and add two observations; one in four PUTs the client's own patient with three.

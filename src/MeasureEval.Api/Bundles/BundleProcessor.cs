@@ -174,6 +174,7 @@ public sealed class BundleProcessor(IResourceStore store, BundlePlanner planner,
 
         if (plan.Condition is { } condition)
         {
+            await session.LockConditionAsync(condition.Query, cancellationToken);
             var existing = await SearchService.RunAsync(condition, session.SearchAsync, cancellationToken);
             if (existing.Total > 1)
             {

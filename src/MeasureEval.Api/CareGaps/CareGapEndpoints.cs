@@ -4,6 +4,7 @@ using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Ingest;
+using MeasureEval.Api.Jobs;
 using MeasureEval.Core.Security;
 using MeasureEval.Engine.Gaps;
 using MeasureEval.Engine.Reports;
@@ -29,11 +30,11 @@ public static class CareGapEndpoints
         var parameters = "periodStart, periodEnd, subject Patient/x or Group/x, practitioner Practitioner/x (panel), organization Organization/x (payer), status (repeated; default open-gap), measureId (repeated; default all), horizon (date; default the end of the next period)";
         group.MapGet("/Measure/$care-gaps", GetCareGapsAsync).WithName("care-gaps-get").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Gaps in care per patient: a Parameters with one Bundle (MeasureReports, DetectedIssues) per patient")
-            .WithFhir([], [200], 400, 404, 406)
+            .WithFhir([], [200, 202], 400, 404, 406)
             .WithFhirOperation("care-gaps", CareGapsDefinition, "Measure", parameters);
         group.MapPost("/Measure/$care-gaps", PostCareGapsAsync).WithName("care-gaps-post").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Gaps in care with a Parameters body")
-            .WithFhir(FhirEndpointExtensions.ResourceMediaTypes, [200], 400, 404, 406, 413, 415);
+            .WithFhir(FhirEndpointExtensions.ResourceMediaTypes, [200, 202], 400, 404, 406, 413, 415);
         group.MapGet("/Measure/$care-gaps-export", ExportAsync).WithName("care-gaps-export").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary($"One row per patient and measure, streamed as CSV or NDJSON (_format=csv|ndjson); {parameters}");
         return app;
@@ -43,9 +44,14 @@ public static class CareGapEndpoints
     {
         ArgumentNullException.ThrowIfNull(request);
         var issues = new List<FhirIssue>();
-        return CareGapQuery.TryRead(request.Query, time, export: false, issues, out var query)
-            ? await CareGapsAsync(query!, CallerScope.Of(user), service, reports, time, cancellationToken)
-            : FhirResult.Outcome(issues);
+        if (!CareGapQuery.TryRead(request.Query, time, export: false, issues, out var query))
+        {
+            return FhirResult.Outcome(issues);
+        }
+
+        return AsyncRequests.Wanted(request)
+            ? await AsyncRequests.StartAsync(request, JobKinds.CareGaps, CareGapJobParameters.From(query!, FhirFormat.Of(request.HttpContext)), cancellationToken)
+            : await CareGapsAsync(query!, CallerScope.Of(user), service, reports, time, cancellationToken);
     }
 
     public static async Task<FhirResult> PostCareGapsAsync(
@@ -65,9 +71,14 @@ public static class CareGapEndpoints
         }
 
         var issues = new List<FhirIssue>();
-        return CareGapQuery.TryRead(body, time, issues, out var query)
-            ? await CareGapsAsync(query!, CallerScope.Of(user), service, reports, time, cancellationToken)
-            : FhirResult.Outcome(issues);
+        if (!CareGapQuery.TryRead(body, time, issues, out var query))
+        {
+            return FhirResult.Outcome(issues);
+        }
+
+        return AsyncRequests.Wanted(request)
+            ? await AsyncRequests.StartAsync(request, JobKinds.CareGaps, CareGapJobParameters.From(query!, FhirFormat.Of(request.HttpContext)), cancellationToken)
+            : await CareGapsAsync(query!, CallerScope.Of(user), service, reports, time, cancellationToken);
     }
 
     public static async Task<Results<PushStreamHttpResult, FhirResult>> ExportAsync(HttpRequest request, ClaimsPrincipal user, CareGapService service, TimeProvider time, CancellationToken cancellationToken)
@@ -80,6 +91,11 @@ public static class CareGapEndpoints
             return FhirResult.Outcome(issues);
         }
 
+        if (AsyncRequests.Wanted(request))
+        {
+            return await AsyncRequests.StartAsync(request, JobKinds.CareGapsExport, CareGapJobParameters.From(query!, FhirFormat.Of(request.HttpContext)), cancellationToken);
+        }
+
         var (selection, problems) = await service.SelectAsync(query!, CallerScope.Of(user), cancellationToken);
         if (selection is null)
         {
@@ -88,23 +104,37 @@ public static class CareGapEndpoints
 
         var csv = query!.Format == ExportFormat.Csv;
         return TypedResults.Stream(
-            async body =>
-            {
-                await using var writer = new CareGapExportWriter(body, query.Format);
-                await writer.WriteHeaderAsync(cancellationToken);
-                await foreach (var patient in service.StreamAsync(selection, query, cancellationToken))
-                {
-                    foreach (var (_, gap) in patient.Gaps)
-                    {
-                        await writer.WriteAsync(gap, cancellationToken);
-                    }
-                }
-            },
-            csv ? CsvType : NdjsonType,
+            body => WriteExportAsync(body, service, selection, query, progress: null, cancellationToken),
+            ExportContentType(query.Format),
             csv ? "care-gaps.csv" : "care-gaps.ndjson");
     }
 
-    private static async Task<FhirResult> CareGapsAsync(CareGapQuery query, DataScope scope, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken)
+    internal static string ExportContentType(ExportFormat format) => format == ExportFormat.Csv ? CsvType : NdjsonType;
+
+    /// <summary>The export rows of a resolved request, written to <paramref name="body"/> as they are found.</summary>
+    internal static async System.Threading.Tasks.Task WriteExportAsync(
+        Stream body, CareGapService service, CareGapSelection selection, CareGapQuery query, IProgress<Engine.EvaluationProgress>? progress, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(service);
+        ArgumentNullException.ThrowIfNull(query);
+        await using var writer = new CareGapExportWriter(body, query.Format);
+        await writer.WriteHeaderAsync(cancellationToken);
+        await foreach (var patient in service.StreamAsync(selection, query, progress, cancellationToken))
+        {
+            foreach (var (_, gap) in patient.Gaps)
+            {
+                await writer.WriteAsync(gap, cancellationToken);
+            }
+        }
+    }
+
+    private static Task<FhirResult> CareGapsAsync(CareGapQuery query, DataScope scope, CareGapService service, MeasureReportBuilder reports, TimeProvider time, CancellationToken cancellationToken) =>
+        CareGapsAsync(query, scope, service, reports, time, progress: null, cancellationToken);
+
+    /// <summary>$care-gaps for a parsed request: what the GET and POST handlers and an asynchronous job answer.</summary>
+    internal static async Task<FhirResult> CareGapsAsync(
+        CareGapQuery query, DataScope scope, CareGapService service, MeasureReportBuilder reports, TimeProvider time, IProgress<Engine.EvaluationProgress>? progress,
+        CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(service);
         var (selection, problems) = await service.SelectAsync(query, scope, cancellationToken);
@@ -115,7 +145,7 @@ public static class CareGapEndpoints
 
         var builder = new CareGapBundleBuilder(reports, time);
         var result = new Parameters { Id = Guid.NewGuid().ToString() };
-        await foreach (var patient in service.StreamAsync(selection, query, cancellationToken))
+        await foreach (var patient in service.StreamAsync(selection, query, progress, cancellationToken))
         {
             result.Parameter.Add(new Parameters.ParameterComponent { Name = "return", Resource = builder.Build(patient.Facts.PatientId, patient.Gaps) });
         }

@@ -8,6 +8,7 @@ using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Gaps;
+using Microsoft.Extensions.Options;
 
 namespace MeasureEval.Api.CareGaps;
 
@@ -25,8 +26,15 @@ public sealed record CareGapSelection(MeasureRepository Repository, IReadOnlyLis
 /// their gaps: each patient's facts are read once for all measures, and nothing grows with the population. Everything is
 /// read within the caller's scope: another payer's patient or Group answers as unknown (404), and is never streamed.
 /// </summary>
-public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
+/// <remarks>
+/// Patients are analysed in batches on <see cref="EvaluationOptions.Workers"/> threads and yielded in stream order, so
+/// the rows are the serial ones in the same order.
+/// </remarks>
+public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog, IOptions<EvaluationOptions> options)
 {
+    /// <summary>Patients analysed together in parallel: large enough to share the work, small enough to keep the stream flowing.</summary>
+    private const int ParallelBatch = 256;
+
     public async Task<(CareGapSelection? Selection, IReadOnlyList<FhirIssue> Issues)> SelectAsync(CareGapQuery query, DataScope scope, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(query);
@@ -73,20 +81,69 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
         return issues.Count > 0 ? (null, issues) : (new CareGapSelection(repository, measures, patientIds, during), issues);
     }
 
-    public async IAsyncEnumerable<PatientGaps> StreamAsync(CareGapSelection selection, CareGapQuery query, [EnumeratorCancellation] CancellationToken cancellationToken)
+    public IAsyncEnumerable<PatientGaps> StreamAsync(CareGapSelection selection, CareGapQuery query, CancellationToken cancellationToken) =>
+        StreamAsync(selection, query, progress: null, cancellationToken);
+
+    /// <summary>As above, telling <paramref name="progress"/> how many patients were read (asynchronous jobs).</summary>
+    public async IAsyncEnumerable<PatientGaps> StreamAsync(
+        CareGapSelection selection, CareGapQuery query, IProgress<EvaluationProgress>? progress, [EnumeratorCancellation] CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(selection);
         ArgumentNullException.ThrowIfNull(query);
         var records = new StoreRecordSource(store);
         var evaluator = new MeasureEvaluator(selection.Repository, records);
         var analyzer = new GapAnalyzer(evaluator, records);
+        var total = progress is null ? 0 : await MeasureEvaluationService.PatientTotalAsync(store, selection.PatientIds, selection.Scope, cancellationToken);
+        var workers = options.Value.EffectiveWorkers;
+        var batchSize = workers > 1 ? ParallelBatch : 1;
+        var batch = new List<PatientFacts>(batchSize);
+        long read = 0;
         await foreach (var facts in store.StreamPatientFactsAsync(selection.PatientIds, selection.Scope, cancellationToken))
         {
+            progress?.Report(new EvaluationProgress(++read, total, EvaluationProgress.Patients));
             if (!OnPanel(facts, query.Practitioner) || !CoveredBy(facts, query.Organization, query.Period))
             {
                 continue;
             }
 
+            batch.Add(facts);
+            if (batch.Count == batchSize)
+            {
+                foreach (var gaps in Analyze(batch))
+                {
+                    yield return gaps;
+                }
+
+                batch.Clear();
+            }
+        }
+
+        foreach (var gaps in Analyze(batch))
+        {
+            yield return gaps;
+        }
+
+        // Each patient's gaps land in its own slot, so the order is the stream's whatever thread finished first.
+        IEnumerable<PatientGaps> Analyze(List<PatientFacts> patients)
+        {
+            var found = new PatientGaps?[patients.Count];
+            if (patients.Count == 1 || workers <= 1)
+            {
+                for (var i = 0; i < patients.Count; i++)
+                {
+                    found[i] = AnalyzeOne(patients[i]);
+                }
+            }
+            else
+            {
+                Parallel.For(0, patients.Count, new ParallelOptions { MaxDegreeOfParallelism = workers, CancellationToken = cancellationToken }, i => found[i] = AnalyzeOne(patients[i]));
+            }
+
+            return found.OfType<PatientGaps>();
+        }
+
+        PatientGaps? AnalyzeOne(PatientFacts facts)
+        {
             var results = evaluator.EvaluateAll(selection.Measures, facts, query.Period);
             var gaps = new List<(MeasureDefinition, CareGap)>();
             for (var i = 0; i < selection.Measures.Count; i++)
@@ -98,10 +155,7 @@ public sealed class CareGapService(IResourceStore store, MeasureCatalog catalog)
                 }
             }
 
-            if (gaps.Count > 0)
-            {
-                yield return new PatientGaps(facts, gaps);
-            }
+            return gaps.Count > 0 ? new PatientGaps(facts, gaps) : null;
         }
     }
 

@@ -87,5 +87,5 @@ public static class ErrorCatalogue
     ];
 
     /// <summary>Every code the service can answer with: these and the feature catalogues kept beside their endpoints.</summary>
-    public static IReadOnlyList<ErrorCode> Published { get; } = [.. All, .. Measures.MeasureErrors.All, .. Analytics.ReportErrorCodes.All];
+    public static IReadOnlyList<ErrorCode> Published { get; } = [.. All, .. Measures.MeasureErrors.All, .. Analytics.ReportErrorCodes.All, .. Jobs.JobErrors.All];
 }

@@ -37,6 +37,9 @@ public sealed class FhirResult : IResult, IStatusCodeHttpResult
 
     public string? Location { get; private init; }
 
+    /// <summary>Further response headers (Content-Location, X-Progress, Retry-After of the asynchronous pattern).</summary>
+    public IReadOnlyList<KeyValuePair<string, string>> Headers { get; private init; } = [];
+
     public static FhirResult Of(int statusCode, Resource resource) => new(statusCode, resource, null);
 
     public static FhirResult Empty(int statusCode) => new(statusCode, null, null);
@@ -58,13 +61,22 @@ public sealed class FhirResult : IResult, IStatusCodeHttpResult
 
     /// <summary>The same response carrying version headers of <paramref name="stored"/> (a 410 names the deletion's version).</summary>
     public FhirResult WithVersionOf(StoredResource stored) =>
-        new(StatusCode, Resource, Json) { ETag = ETags.Of(stored.VersionId), LastModified = stored.LastUpdated, Location = Location };
+        new(StatusCode, Resource, Json) { ETag = ETags.Of(stored.VersionId), LastModified = stored.LastUpdated, Location = Location, Headers = Headers };
+
+    /// <summary>The same response with one more header.</summary>
+    public FhirResult WithHeader(string name, string value) =>
+        new(StatusCode, Resource, Json) { ETag = ETag, LastModified = LastModified, Location = Location, Headers = [.. Headers, new(name, value)] };
 
     public async System.Threading.Tasks.Task ExecuteAsync(HttpContext httpContext)
     {
         ArgumentNullException.ThrowIfNull(httpContext);
         var response = httpContext.Response;
         response.StatusCode = StatusCode;
+        foreach (var (name, value) in Headers)
+        {
+            response.Headers[name] = value;
+        }
+
         if (ETag is not null)
         {
             response.Headers.ETag = ETag;

@@ -5,6 +5,7 @@ using MeasureEval.Api.Capabilities;
 using MeasureEval.Api.Errors;
 using MeasureEval.Api.Fhir;
 using MeasureEval.Api.Ingest;
+using MeasureEval.Api.Jobs;
 using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
@@ -42,14 +43,14 @@ public static class MeasureEndpoints
             .WithFhir(fhirBody, [200, 201], 400, 406, 413, 415);
         group.MapGet("/Measure/{id}/$evaluate-measure", EvaluateGetAsync).WithName("evaluate-measure-get").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Evaluate one measure: periodStart, periodEnd, subject (Patient/x or Group/x), practitioner, reportType")
-            .WithFhir([], [200], 400, 404, 406)
+            .WithFhir([], [200, 202], 400, 404, 406)
             .WithFhirOperation("evaluate-measure", EvaluateDefinition, "Measure", "periodStart, periodEnd (dates, default the current calendar year), subject Patient/x or Group/x, practitioner (Patient.generalPractitioner), reportType subject | subject-list | population");
         group.MapPost("/Measure/{id}/$evaluate-measure", EvaluatePostAsync).WithName("evaluate-measure-post").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Evaluate one measure with a Parameters body")
-            .WithFhir(fhirBody, [200], 400, 404, 406, 413, 415);
+            .WithFhir(fhirBody, [200, 202], 400, 404, 406, 413, 415);
         group.MapPost("/Measure/$evaluate-measure", EvaluateManyAsync).WithName("evaluate-measures").RequireAuthorization(AccessPolicies.PatientData)
             .WithSummary("Evaluate several measures (Parameters, measureId repeated) in one pass over the patients; a Bundle of MeasureReports")
-            .WithFhir(fhirBody, [200], 400, 404, 406, 413, 415)
+            .WithFhir(fhirBody, [200, 202], 400, 404, 406, 413, 415)
             .WithFhirOperation("evaluate-measure", EvaluateDefinition, "Measure", "type level: measureId repeated; the other parameters as on an instance; answers a Bundle of MeasureReports, one per measure");
         return app;
     }
@@ -163,13 +164,23 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(issues);
         }
 
-        return await EvaluateOneAsync(id, request.HttpContext.Response, parameters!, CallerScope.Of(user), catalog, service, cancellationToken);
+        if (AsyncRequests.Wanted(request))
+        {
+            return await AsyncRequests.StartAsync(request, JobKinds.EvaluateMeasure, EvaluateJobParameters.From(id, parameters!, FhirFormat.Of(request.HttpContext)), cancellationToken);
+        }
+
+        return await EvaluateOneAsync(id, parameters!, CallerScope.Of(user), catalog, service, null, request.HttpContext.Response, cancellationToken);
     }
 
     public static async Task<FhirResult> EvaluatePostAsync(string id, HttpRequest request, ClaimsPrincipal user, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
     {
         var (parameters, error) = await ReadParametersAsync(request, time, options, cancellationToken);
-        return error ?? await EvaluateOneAsync(id, request.HttpContext.Response, parameters!, CallerScope.Of(user), catalog, service, cancellationToken);
+        if (error is null && AsyncRequests.Wanted(request))
+        {
+            return await AsyncRequests.StartAsync(request, JobKinds.EvaluateMeasure, EvaluateJobParameters.From(id, parameters!, FhirFormat.Of(request.HttpContext)), cancellationToken);
+        }
+
+        return error ?? await EvaluateOneAsync(id, parameters!, CallerScope.Of(user), catalog, service, null, request.HttpContext.Response, cancellationToken);
     }
 
     public static async Task<FhirResult> EvaluateManyAsync(HttpRequest request, ClaimsPrincipal user, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
@@ -187,6 +198,28 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(new FhirIssue(MeasureErrors.InvalidParameter, "name the measures with measureId (repeated)", "measureId"));
         }
 
+        if (AsyncRequests.Wanted(request))
+        {
+            return await AsyncRequests.StartAsync(request, JobKinds.EvaluateMeasure, EvaluateJobParameters.From(null, parameters, FhirFormat.Of(request.HttpContext)), cancellationToken);
+        }
+
+        return await EvaluateMeasuresAsync(parameters, CallerScope.Of(user), catalog, service, null, request.HttpContext.Response, cancellationToken);
+    }
+
+    /// <summary>The type-level operation for parsed parameters: what the POST handler and an asynchronous job answer.</summary>
+    internal static Task<FhirResult> EvaluateMeasuresAsync(
+        EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress,
+        CancellationToken cancellationToken) =>
+        EvaluateMeasuresAsync(parameters, scope, catalog, service, progress, null, cancellationToken);
+
+    /// <summary>As above; a synchronous answer (<paramref name="response"/>) also carries the cluster headers.</summary>
+    private static async Task<FhirResult> EvaluateMeasuresAsync(
+        EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress,
+        HttpResponse? response, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(parameters);
+        ArgumentNullException.ThrowIfNull(catalog);
+        ArgumentNullException.ThrowIfNull(service);
         var repository = await catalog.GetAsync(cancellationToken);
         var measures = new List<MeasureDefinition>();
         var issues = new List<FhirIssue>();
@@ -207,13 +240,17 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(issues);
         }
 
-        var outcome = await service.EvaluateAsync(repository, measures, parameters, CallerScope.Of(user), cancellationToken);
+        var outcome = await service.EvaluateAsync(repository, measures, parameters, scope, progress, cancellationToken);
         if (outcome.Error is not null)
         {
             return FhirResult.Outcome(outcome.Error);
         }
 
-        ClusterHeaders.Write(request.HttpContext.Response, outcome.Cluster);
+        if (response is not null)
+        {
+            ClusterHeaders.Write(response, outcome.Cluster);
+        }
+
         var reports = outcome.Reports;
         var bundle = new Bundle { Id = Guid.NewGuid().ToString(), Type = Bundle.BundleType.Collection };
         foreach (var report in reports)
@@ -224,9 +261,16 @@ public static class MeasureEndpoints
         return FhirResult.Of(200, bundle);
     }
 
+    /// <summary>One measure for parsed parameters: what the GET and POST handlers and an asynchronous job answer.</summary>
+    internal static Task<FhirResult> EvaluateOneAsync(
+        string id, EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress,
+        CancellationToken cancellationToken) =>
+        EvaluateOneAsync(id, parameters, scope, catalog, service, progress, null, cancellationToken);
+
+    /// <summary>As above; a synchronous answer (<paramref name="response"/>) also carries the cluster headers.</summary>
     private static async Task<FhirResult> EvaluateOneAsync(
-        string id, HttpResponse response, EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service,
-        CancellationToken cancellationToken)
+        string id, EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress,
+        HttpResponse? response, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(catalog);
         ArgumentNullException.ThrowIfNull(service);
@@ -236,13 +280,17 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(new FhirIssue(MeasureErrors.UnknownMeasure, $"no measure '{id}' is loaded"));
         }
 
-        var outcome = await service.EvaluateAsync(repository, [measure], parameters, scope, cancellationToken);
+        var outcome = await service.EvaluateAsync(repository, [measure], parameters, scope, progress, cancellationToken);
         if (outcome.Error is not null)
         {
             return FhirResult.Outcome(outcome.Error);
         }
 
-        ClusterHeaders.Write(response, outcome.Cluster);
+        if (response is not null)
+        {
+            ClusterHeaders.Write(response, outcome.Cluster);
+        }
+
         return FhirResult.Of(200, outcome.Reports[0]);
     }
 

@@ -8,6 +8,7 @@ using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using MeasureEval.Engine.Reports;
+using Microsoft.Extensions.Options;
 
 namespace MeasureEval.Api.Measures;
 
@@ -16,14 +17,18 @@ namespace MeasureEval.Api.Measures;
 /// In cluster mode (<see cref="ClusterEvaluation"/> registered) a population is evaluated partitioned over the nodes; the reports are the same.
 /// Every patient comes from the store within the caller's scope during the measurement period: a payer's report counts
 /// its members only, and another payer's patient or Group answers as unknown.
+/// A single-node population is evaluated on <see cref="EvaluationOptions.Workers"/> threads; the reports equal the serial ones.
 /// </remarks>
-public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time, ClusterEvaluation? cluster = null)
+public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time, IOptions<EvaluationOptions> options, ClusterEvaluation? cluster = null)
 {
     public Task<EvaluationOutcome> EvaluateAsync(
         MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, DataScope scope, CancellationToken cancellationToken) =>
-        EvaluateAsync(repository, measures, parameters, scope, null, cancellationToken);
+        EvaluateAsync(repository, measures, parameters, scope, progress: null, cancellationToken);
 
-    /// <summary>As above; in cluster mode a population evaluation reports partitions done to <paramref name="progress"/>.</summary>
+    /// <summary>
+    /// As above, telling <paramref name="progress"/> how far it is (asynchronous jobs): patients done on a single node,
+    /// partitions done in cluster mode.
+    /// </summary>
     public async Task<EvaluationOutcome> EvaluateAsync(
         MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, DataScope scope,
         IProgress<EvaluationProgress>? progress, CancellationToken cancellationToken)
@@ -58,6 +63,7 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
             }
 
             var results = evaluator.EvaluateAll(measures, facts, parameters.Period);
+            progress?.Report(new EvaluationProgress(1, 1, EvaluationProgress.Patients));
             return new([.. measures.Select((m, i) => builder.Individual(m, parameters.Period, results[i]))], null);
         }
 
@@ -70,19 +76,35 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
         }
         else
         {
-            summaries = await new PopulationEvaluator(evaluator).SummarizeAsync(
-                Filter(store.StreamPatientFactsAsync(patientIds, during, cancellationToken), parameters.PractitionerReference, cancellationToken),
+            var total = progress is null ? 0 : await PatientTotalAsync(store, patientIds, scope, cancellationToken);
+            summaries = await new PopulationEvaluator(evaluator, options.Value.EffectiveWorkers).SummarizeAsync(
+                Filter(store.StreamPatientFactsAsync(patientIds, during, cancellationToken), parameters.PractitionerReference, progress, total, cancellationToken),
                 measures, parameters.Period, keepSubjects, cancellationToken);
         }
 
         return new([.. summaries.Select(s => parameters.ReportKind == ReportKind.SubjectList ? builder.SubjectList(s) : builder.Summary(s))], null, run);
     }
 
-    private static async IAsyncEnumerable<PatientFacts> Filter(
-        IAsyncEnumerable<PatientFacts> patients, string? practitioner, [System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellationToken)
+    /// <summary>
+    /// The patients a stream will read, for progress: the ids asked for, else every index entry; 0 (unknown) for a
+    /// payer, whose members are a subset the store does not count ahead.
+    /// </summary>
+    internal static async Task<long> PatientTotalAsync(IResourceStore store, IReadOnlyCollection<string>? patientIds, DataScope scope, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(store);
+        ArgumentNullException.ThrowIfNull(scope);
+        return patientIds?.Count ?? (scope.IsUnrestricted ? await store.CountPatientFactsAsync(cancellationToken) : 0);
+    }
+
+    /// <summary>The practitioner's panel; progress counts every patient read (filtered out or not), so it reaches the total.</summary>
+    private static async IAsyncEnumerable<PatientFacts> Filter(
+        IAsyncEnumerable<PatientFacts> patients, string? practitioner, IProgress<EvaluationProgress>? progress, long total,
+        [System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellationToken)
+    {
+        long read = 0;
         await foreach (var patient in patients.WithCancellation(cancellationToken))
         {
+            progress?.Report(new EvaluationProgress(++read, total, EvaluationProgress.Patients));
             if (practitioner is null || patient.Demographics?.GeneralPractitioner == practitioner)
             {
                 yield return patient;

@@ -10,6 +10,7 @@ public static class MeasureServiceCollectionExtensions
         ArgumentNullException.ThrowIfNull(services);
         services.AddOptions<MeasureCatalogOptions>().BindConfiguration(MeasureCatalogOptions.Section)
             .Validate(o => !string.IsNullOrWhiteSpace(o.Directory), "Measures:Directory must name a directory").ValidateOnStart();
+        services.AddOptions<EvaluationOptions>().BindConfiguration(EvaluationOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.AddSingleton<MeasureCatalog>();
         services.AddSingleton<MeasureEvaluationService>();
         return services;

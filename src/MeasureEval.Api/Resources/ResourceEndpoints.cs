@@ -200,6 +200,7 @@ public static class ResourceEndpoints
         await using var session = await store.BeginWriteAsync(cancellationToken);
         if (condition is not null)
         {
+            await session.LockConditionAsync(condition.Query, cancellationToken);
             var existing = await SearchService.RunAsync(condition, session.SearchAsync, cancellationToken);
             if (existing.Total > 1)
             {

@@ -10,7 +10,7 @@ namespace MeasureEval.Cluster.Hosting;
 public sealed class ClusterEvaluation(IGrainFactory grains, IOptions<MeasureClusterOptions> options)
 {
     /// <summary>The unit of <see cref="EvaluationProgress"/> reported by a cluster run.</summary>
-    public const string ProgressUnit = "partitions";
+    public const string ProgressUnit = EvaluationProgress.Partitions;
 
     /// <summary>
     /// Evaluates the population (everyone in <paramref name="scope"/>, or <paramref name="patientIds"/>) partitioned over the live nodes. With

@@ -43,6 +43,9 @@ public interface IResourceStore
     /// </summary>
     System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, DataScope scope, CancellationToken cancellationToken);
 
+    /// <summary>How many patients have an index entry (what a full <see cref="StreamPatientFactsAsync"/> yields), for progress reports.</summary>
+    System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken);
+
     /// <summary>
     /// Streams index entries in ascending patient id order: all patients in the scope when <paramref name="patientIds"/>
     /// is null, otherwise just those (unknown and out-of-scope ids are skipped). Memory does not grow with the population.
@@ -76,6 +79,13 @@ public interface IStoreSession : IAsyncDisposable
     System.Threading.Tasks.Task<StoredResource?> ReadAsync(string resourceType, string id, CancellationToken cancellationToken);
 
     System.Threading.Tasks.Task<SearchResult> SearchAsync(SearchQuery query, CancellationToken cancellationToken);
+
+    /// <summary>
+    /// Call before the search of a conditional create: other sessions locking an equal condition wait until this session
+    /// ends, so two of them cannot both find no match and both create. Where sessions already run one at a time
+    /// (SQLite) this does nothing.
+    /// </summary>
+    System.Threading.Tasks.Task LockConditionAsync(SearchQuery condition, CancellationToken cancellationToken);
 
     System.Threading.Tasks.Task CommitAsync(CancellationToken cancellationToken);
 }

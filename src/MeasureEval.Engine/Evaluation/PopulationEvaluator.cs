@@ -1,4 +1,6 @@
 using System.Runtime.CompilerServices;
+using System.Text;
+using System.Threading.Channels;
 using MeasureEval.Core.Index;
 
 namespace MeasureEval.Engine;
@@ -7,8 +9,18 @@ namespace MeasureEval.Engine;
 /// Evaluates several measures over a stream of patients in one pass: each patient's facts are read once, their dates
 /// parsed once and shared definitions computed once for all measures.
 /// </summary>
-public sealed class PopulationEvaluator(MeasureEvaluator evaluator)
+/// <remarks>
+/// With <paramref name="workers"/> above 1 a summary is computed in parallel: one reader streams the patients and hands
+/// each to the worker its id hashes to (FNV-1a of the UTF-8 id, modulo the worker count: stable across runs and
+/// processes); every worker aggregates its own partial summaries, which are then added up in worker order. Counts,
+/// strata and findings are sums, so the result equals the serial one exactly; subject lists hold the same ids (the
+/// report sorts them).
+/// </remarks>
+public sealed class PopulationEvaluator(MeasureEvaluator evaluator, int workers = 1)
 {
+    /// <summary>Patients queued per worker: enough to keep a worker busy while the reader decodes, small enough to bound memory.</summary>
+    private const int QueuePerWorker = 256;
+
     /// <summary>Per patient, the results of every measure (same order as <paramref name="measures"/>).</summary>
     public async IAsyncEnumerable<IReadOnlyList<PatientResult>> EvaluateAsync(
         IAsyncEnumerable<PatientFacts> patients, IReadOnlyList<MeasureDefinition> measures, MeasurementPeriod period,
@@ -21,19 +33,133 @@ public sealed class PopulationEvaluator(MeasureEvaluator evaluator)
     }
 
     /// <summary>Aggregates without keeping per-patient results (patient ids only when <paramref name="keepSubjects"/>).</summary>
+    public Task<IReadOnlyList<PopulationSummary>> SummarizeAsync(
+        IAsyncEnumerable<PatientFacts> patients, IReadOnlyList<MeasureDefinition> measures, MeasurementPeriod period, bool keepSubjects,
+        CancellationToken cancellationToken) =>
+        SummarizeAsync(patients, measures, period, keepSubjects, progress: null, total: 0, cancellationToken);
+
+    /// <summary>As above, telling <paramref name="progress"/> after every patient: patients done of <paramref name="total"/> (0 when not known).</summary>
     public async Task<IReadOnlyList<PopulationSummary>> SummarizeAsync(
         IAsyncEnumerable<PatientFacts> patients, IReadOnlyList<MeasureDefinition> measures, MeasurementPeriod period, bool keepSubjects,
-        CancellationToken cancellationToken)
+        IProgress<EvaluationProgress>? progress, long total, CancellationToken cancellationToken)
     {
-        var summaries = measures.Select(m => new PopulationSummary(m, period, keepSubjects)).ToArray();
-        await foreach (var results in EvaluateAsync(patients, measures, period, cancellationToken).ConfigureAwait(false))
+        ArgumentNullException.ThrowIfNull(patients);
+        ArgumentNullException.ThrowIfNull(measures);
+        if (workers <= 1)
         {
-            for (var i = 0; i < summaries.Length; i++)
+            var summaries = NewSummaries(measures, period, keepSubjects);
+            long done = 0;
+            await foreach (var results in EvaluateAsync(patients, measures, period, cancellationToken).ConfigureAwait(false))
             {
-                summaries[i].Add(results[i]);
+                for (var i = 0; i < summaries.Length; i++)
+                {
+                    summaries[i].Add(results[i]);
+                }
+
+                progress?.Report(new EvaluationProgress(++done, total, EvaluationProgress.Patients));
+            }
+
+            return summaries;
+        }
+
+        return await SummarizeParallelAsync(patients, measures, period, keepSubjects, progress, total, cancellationToken).ConfigureAwait(false);
+    }
+
+    /// <summary>The worker a patient belongs to: FNV-1a (32-bit) of the UTF-8 id, modulo the worker count.</summary>
+    public static int PartitionOf(string patientId, int partitions)
+    {
+        ArgumentNullException.ThrowIfNull(patientId);
+        var hash = 2166136261u;
+        foreach (var b in Encoding.UTF8.GetBytes(patientId))
+        {
+            hash = (hash ^ b) * 16777619u;
+        }
+
+        return (int)(hash % (uint)partitions);
+    }
+
+    private async Task<IReadOnlyList<PopulationSummary>> SummarizeParallelAsync(
+        IAsyncEnumerable<PatientFacts> patients, IReadOnlyList<MeasureDefinition> measures, MeasurementPeriod period, bool keepSubjects,
+        IProgress<EvaluationProgress>? progress, long total, CancellationToken cancellationToken)
+    {
+        using var failed = CancellationTokenSource.CreateLinkedTokenSource(cancellationToken);
+        var queues = Enumerable.Range(0, workers)
+            .Select(_ => Channel.CreateBounded<PatientFacts>(new BoundedChannelOptions(QueuePerWorker) { SingleReader = true, SingleWriter = true }))
+            .ToArray();
+        var partials = Enumerable.Range(0, workers).Select(_ => NewSummaries(measures, period, keepSubjects)).ToArray();
+        long done = 0;
+        var running = queues.Select((queue, w) => Task.Run(
+            async () =>
+            {
+                try
+                {
+                    await foreach (var patient in queue.Reader.ReadAllAsync(failed.Token).ConfigureAwait(false))
+                    {
+                        var results = evaluator.EvaluateAll(measures, patient, period);
+                        for (var i = 0; i < results.Count; i++)
+                        {
+                            partials[w][i].Add(results[i]);
+                        }
+
+                        progress?.Report(new EvaluationProgress(Interlocked.Increment(ref done), total, EvaluationProgress.Patients));
+                    }
+                }
+                catch
+                {
+                    // Stop the reader and the other workers; the first failure is rethrown below.
+                    await failed.CancelAsync().ConfigureAwait(false);
+                    throw;
+                }
+            },
+            CancellationToken.None)).ToArray();
+
+        Exception? readFailure = null;
+        try
+        {
+            await foreach (var patient in patients.WithCancellation(failed.Token).ConfigureAwait(false))
+            {
+                await queues[PartitionOf(patient.PatientId, workers)].Writer.WriteAsync(patient, failed.Token).ConfigureAwait(false);
+            }
+        }
+        catch (Exception e)
+        {
+            readFailure = e;
+            await failed.CancelAsync().ConfigureAwait(false);
+        }
+        finally
+        {
+            foreach (var queue in queues)
+            {
+                queue.Writer.TryComplete();
             }
         }
 
-        return summaries;
+        try
+        {
+            await Task.WhenAll(running).ConfigureAwait(false);
+        }
+        catch (OperationCanceledException) when (readFailure is not null)
+        {
+            // The workers stopped because the reader failed; its exception is the one to report.
+        }
+
+        if (readFailure is not null)
+        {
+            System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(readFailure).Throw();
+        }
+
+        var merged = NewSummaries(measures, period, keepSubjects);
+        foreach (var partial in partials)
+        {
+            for (var i = 0; i < merged.Length; i++)
+            {
+                merged[i].Merge(partial[i]);
+            }
+        }
+
+        return merged;
     }
+
+    private static PopulationSummary[] NewSummaries(IReadOnlyList<MeasureDefinition> measures, MeasurementPeriod period, bool keepSubjects) =>
+        [.. measures.Select(m => new PopulationSummary(m, period, keepSubjects))];
 }

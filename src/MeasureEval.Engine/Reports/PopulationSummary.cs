@@ -133,6 +133,18 @@ public sealed class PopulationSummary
         }
     }
 
+    /// <summary>Adds another summary of the same measure and period over other patients (a parallel worker's).</summary>
+    public void Merge(PopulationSummary other)
+    {
+        ArgumentNullException.ThrowIfNull(other);
+        AddPartial(
+            other.PatientsEvaluated,
+            other.Counts.ToCounts(),
+            other._strata.ToDictionary(s => s.Key, s => s.Value.ToDictionary(c => c.Key, c => c.Value.ToCounts(), StringComparer.Ordinal), StringComparer.Ordinal),
+            other._findings,
+            other._subjects);
+    }
+
     /// <summary>
     /// Adds the aggregate of patients evaluated elsewhere (a cluster partition's): counts, strata, findings and subjects
     /// add up, so merging the partitions of a population gives the summary of the whole.

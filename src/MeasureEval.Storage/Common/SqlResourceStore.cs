@@ -61,6 +61,12 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
     /// </summary>
     internal abstract string? LockForRebuildSql { get; }
 
+    /// <summary>
+    /// Takes a lock held until the transaction ends on the 64-bit key @p0 (a conditional create's condition), or null where
+    /// one write session at a time already excludes the race.
+    /// </summary>
+    internal abstract string? LockConditionSql { get; }
+
     protected abstract ValueTask<DbConnection> OpenConnectionAsync(CancellationToken cancellationToken);
 
     internal ValueTask<DbConnection> OpenReaderAsync(CancellationToken cancellationToken) => OpenConnectionAsync(cancellationToken);
@@ -240,6 +246,20 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         }
     }
 
+    /// <summary>
+    /// Runs <paramref name="write"/> in a write transaction of its own, queued like a write session (SQLite: behind the
+    /// one writer), and commits it: for small writes outside the resource tables (the job table).
+    /// </summary>
+    internal async System.Threading.Tasks.Task<T> WriteAsync<T>(Func<DbConnection, DbTransaction, System.Threading.Tasks.Task<T>> write, CancellationToken cancellationToken)
+    {
+        using var writer = await AcquireWriterAsync(cancellationToken).ConfigureAwait(false);
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var transaction = await BeginWriteTransactionAsync(connection, cancellationToken).ConfigureAwait(false);
+        var result = await write(connection, transaction).ConfigureAwait(false);
+        await transaction.CommitAsync(cancellationToken).ConfigureAwait(false);
+        return result;
+    }
+
     public async System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, DataScope scope, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(patientId);
@@ -255,6 +275,13 @@ public abstract class SqlResourceStore : IResourceStore, IAsyncDisposable
         return await reader.ReadAsync(cancellationToken).ConfigureAwait(false) && !reader.IsDBNull(0)
             ? ScopeCheck.Narrow(PatientFactsCodec.Decode(reader.GetFieldValue<byte[]>(0)), scope)
             : null;
+    }
+
+    public async System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var command = Command(connection, null, "SELECT COUNT(*) FROM patient_index WHERE facts IS NOT NULL");
+        return Convert.ToInt64(await command.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false), CultureInfo.InvariantCulture);
     }
 
     public async IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(

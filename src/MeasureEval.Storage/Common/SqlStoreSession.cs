@@ -130,6 +130,18 @@ internal sealed class SqlStoreSession : IStoreSession
         return await SqlResourceStore.SearchAsync(_connection, _transaction, query, cancellationToken).ConfigureAwait(false);
     }
 
+    public async System.Threading.Tasks.Task LockConditionAsync(SearchQuery condition, CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(condition);
+        EnsureOpen();
+        if (_store.LockConditionSql is not { } sql)
+        {
+            return;
+        }
+
+        await QueryAsync(sql, [ConditionKeys.Of(condition)], async (reader, ct) => await reader.ReadAsync(ct).ConfigureAwait(false), cancellationToken).ConfigureAwait(false);
+    }
+
     public async System.Threading.Tasks.Task CommitAsync(CancellationToken cancellationToken)
     {
         EnsureOpen();

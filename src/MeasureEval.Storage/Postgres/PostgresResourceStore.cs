@@ -54,6 +54,11 @@ public sealed class PostgresResourceStore : SqlResourceStore
         RETURNING facts
         """;
 
+    // At READ COMMITTED two sessions with the same ifNoneExist would both see no match and both create. A transaction-scoped
+    // advisory lock on the condition's hash makes the second wait; its search then runs on a fresh snapshot and finds
+    // the first one's resource. A hash collision only makes unrelated conditions queue, never wrong.
+    internal override string? LockConditionSql => "SELECT pg_advisory_xact_lock(@p0)";
+
     protected override async ValueTask<DbConnection> OpenConnectionAsync(CancellationToken cancellationToken) =>
         await _dataSource.OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
 

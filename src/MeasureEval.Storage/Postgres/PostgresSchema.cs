@@ -69,6 +69,25 @@ internal static class PostgresSchema
         );
         CREATE TABLE payer_scope_state (derived integer NOT NULL);
         """,
+        """
+        CREATE TABLE async_jobs (
+            id text COLLATE "C" NOT NULL PRIMARY KEY,
+            kind text NOT NULL,
+            parameters text NOT NULL,
+            claims text NOT NULL,
+            state text NOT NULL,
+            attempts integer NOT NULL,
+            done bigint NOT NULL,
+            total bigint NOT NULL,
+            unit text,
+            created bigint NOT NULL,
+            updated bigint NOT NULL,
+            result_status integer,
+            result_type text,
+            result_body bytea
+        );
+        CREATE INDEX async_jobs_by_state ON async_jobs (state, created);
+        """,
         $"""
         ALTER TABLE patient_index ADD COLUMN partition_key bigint;
         {PartitionKeyBackfill}

@@ -42,6 +42,9 @@ public sealed class SqliteResourceStore : SqlResourceStore
 
     internal override string? LockForRebuildSql => null;
 
+    // One write session at a time: a conditional create's search and create cannot interleave with another's.
+    internal override string? LockConditionSql => null;
+
     internal override string LockIndexEntrySql => "SELECT facts FROM patient_index WHERE patient_id = @p0";
 
     protected override async System.Threading.Tasks.Task PrepareDatabaseAsync(CancellationToken cancellationToken)

@@ -69,6 +69,25 @@ internal static class SqliteSchema
         ) WITHOUT ROWID;
         CREATE TABLE payer_scope_state (derived INTEGER NOT NULL);
         """,
+        """
+        CREATE TABLE async_jobs (
+            id TEXT NOT NULL PRIMARY KEY,
+            kind TEXT NOT NULL,
+            parameters TEXT NOT NULL,
+            claims TEXT NOT NULL,
+            state TEXT NOT NULL,
+            attempts INTEGER NOT NULL,
+            done INTEGER NOT NULL,
+            total INTEGER NOT NULL,
+            unit TEXT,
+            created INTEGER NOT NULL,
+            updated INTEGER NOT NULL,
+            result_status INTEGER,
+            result_type TEXT,
+            result_body BLOB
+        );
+        CREATE INDEX async_jobs_by_state ON async_jobs (state, created);
+        """,
         $"""
         ALTER TABLE patient_index ADD COLUMN partition_key INTEGER;
         {PartitionKeyBackfill}

@@ -9,6 +9,16 @@ namespace MeasureEval.Reliability.Tests.Support;
 public sealed class ReliabilityApiFactory : WebApplicationFactory<Program>
 {
     private readonly string _directory = Directory.CreateTempSubdirectory("measureeval-reliability-").FullName;
+    private readonly string? _postgres;
+
+    public ReliabilityApiFactory()
+    {
+    }
+
+    private ReliabilityApiFactory(string postgresConnectionString) => _postgres = postgresConnectionString;
+
+    /// <summary>Over PostgreSQL (a schema of the test server) instead of SQLite.</summary>
+    public static ReliabilityApiFactory OnPostgres(string connectionString) => new(connectionString);
 
     public string DatabasePath => Path.Combine(_directory, "store.db");
 
@@ -23,8 +33,8 @@ public sealed class ReliabilityApiFactory : WebApplicationFactory<Program>
     protected override void ConfigureWebHost(IWebHostBuilder builder)
     {
         ArgumentNullException.ThrowIfNull(builder);
-        builder.UseSetting("Storage:Provider", "Sqlite");
-        builder.UseSetting("Storage:ConnectionString", $"Data Source={DatabasePath}");
+        builder.UseSetting("Storage:Provider", _postgres is null ? "Sqlite" : "Postgres");
+        builder.UseSetting("Storage:ConnectionString", _postgres ?? $"Data Source={DatabasePath}");
         builder.UseSetting("Measures:Directory", Path.Combine(RepositoryRoot.Path, "measures"));
         foreach (var (key, value) in TestTokens.Settings)
         {

@@ -20,8 +20,12 @@ public sealed class ServiceProcess : IDisposable
     /// <summary>The one place a client of the process gets its address (and, with auth on, its credentials).</summary>
     public HttpClient Client() => new() { BaseAddress = BaseAddress, Timeout = TimeSpan.FromSeconds(60) };
 
-    public static async Task<ServiceProcess> StartAsync(string databasePath)
+    public static Task<ServiceProcess> StartAsync(string databasePath) => StartAsync(databasePath, new Dictionary<string, string>());
+
+    /// <summary>As above, with more settings as environment variables (<c>Jobs__PatientDelay</c>, …).</summary>
+    public static async Task<ServiceProcess> StartAsync(string databasePath, IReadOnlyDictionary<string, string> settings)
     {
+        ArgumentNullException.ThrowIfNull(settings);
         var port = FreePort();
         var start = new ProcessStartInfo("dotnet")
         {
@@ -38,6 +42,11 @@ public sealed class ServiceProcess : IDisposable
         // Loopback only: the service refuses this switch on any other address.
         start.Environment["Auth__Disabled"] = "true";
         start.Environment["ASPNETCORE_ENVIRONMENT"] = "Production";
+        foreach (var (key, value) in settings)
+        {
+            start.Environment[key] = value;
+        }
+
         var process = Process.Start(start) ?? throw new InvalidOperationException("dotnet did not start");
         // Drain the pipes so that a chatty log never blocks the service.
         process.OutputDataReceived += (_, _) => { };

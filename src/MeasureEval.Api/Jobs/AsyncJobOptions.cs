@@ -1,0 +1,32 @@
+using System.ComponentModel.DataAnnotations;
+
+namespace MeasureEval.Api.Jobs;
+
+/// <summary>The background worker that runs asynchronous requests (<c>Prefer: respond-async</c>).</summary>
+public sealed class AsyncJobOptions
+{
+    public const string Section = "Jobs";
+
+    /// <summary>Jobs run at the same time by this process; 0 runs none here (another process on the same store does).</summary>
+    [Range(0, 64)]
+    public int Workers { get; set; } = 1;
+
+    /// <summary>Runs a job may start (a restart re-runs it from the beginning); then it is marked failed.</summary>
+    [Range(1, 100)]
+    public int MaxAttempts { get; set; } = 3;
+
+    /// <summary>Seconds a poller is told to wait (Retry-After) while a job runs.</summary>
+    [Range(1, 3600)]
+    public int RetryAfterSeconds { get; set; } = 2;
+
+    /// <summary>How often the worker looks for queued jobs it was not told about, and saves a running job's progress.</summary>
+    [Range(typeof(TimeSpan), "00:00:00.050", "00:10:00")]
+    public TimeSpan PollInterval { get; set; } = TimeSpan.FromSeconds(1);
+
+    /// <summary>
+    /// Test and demonstration hook: a pause per patient in a job, so that a small population shows progress, can be
+    /// cancelled or killed mid-way. Zero (the default) in production.
+    /// </summary>
+    [Range(typeof(TimeSpan), "00:00:00", "00:00:01")]
+    public TimeSpan PatientDelay { get; set; } = TimeSpan.Zero;
+}
