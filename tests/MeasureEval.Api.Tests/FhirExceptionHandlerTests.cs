@@ -63,5 +63,8 @@ public sealed class FhirExceptionHandlerTests(ApiFactory factory) : IClassFixtur
 
         public IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, DataScope scope, CancellationToken cancellationToken) =>
             inner.StreamPatientFactsAsync(patientIds, scope, cancellationToken);
+
+        public IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(int partition, int partitionCount, DataScope scope, CancellationToken cancellationToken) =>
+            inner.StreamPartitionFactsAsync(partition, partitionCount, scope, cancellationToken);
     }
 }

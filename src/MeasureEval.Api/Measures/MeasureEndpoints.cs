@@ -169,7 +169,7 @@ public static class MeasureEndpoints
             return await AsyncRequests.StartAsync(request, JobKinds.EvaluateMeasure, EvaluateJobParameters.From(id, parameters!, FhirFormat.Of(request.HttpContext)), cancellationToken);
         }
 
-        return await EvaluateOneAsync(id, parameters!, CallerScope.Of(user), catalog, service, cancellationToken);
+        return await EvaluateOneAsync(id, parameters!, CallerScope.Of(user), catalog, service, null, request.HttpContext.Response, cancellationToken);
     }
 
     public static async Task<FhirResult> EvaluatePostAsync(string id, HttpRequest request, ClaimsPrincipal user, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
@@ -180,7 +180,7 @@ public static class MeasureEndpoints
             return await AsyncRequests.StartAsync(request, JobKinds.EvaluateMeasure, EvaluateJobParameters.From(id, parameters!, FhirFormat.Of(request.HttpContext)), cancellationToken);
         }
 
-        return error ?? await EvaluateOneAsync(id, parameters!, CallerScope.Of(user), catalog, service, cancellationToken);
+        return error ?? await EvaluateOneAsync(id, parameters!, CallerScope.Of(user), catalog, service, null, request.HttpContext.Response, cancellationToken);
     }
 
     public static async Task<FhirResult> EvaluateManyAsync(HttpRequest request, ClaimsPrincipal user, MeasureCatalog catalog, MeasureEvaluationService service, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)
@@ -203,13 +203,19 @@ public static class MeasureEndpoints
             return await AsyncRequests.StartAsync(request, JobKinds.EvaluateMeasure, EvaluateJobParameters.From(null, parameters, FhirFormat.Of(request.HttpContext)), cancellationToken);
         }
 
-        return await EvaluateMeasuresAsync(parameters, CallerScope.Of(user), catalog, service, progress: null, cancellationToken);
+        return await EvaluateMeasuresAsync(parameters, CallerScope.Of(user), catalog, service, null, request.HttpContext.Response, cancellationToken);
     }
 
     /// <summary>The type-level operation for parsed parameters: what the POST handler and an asynchronous job answer.</summary>
-    internal static async Task<FhirResult> EvaluateMeasuresAsync(
+    internal static Task<FhirResult> EvaluateMeasuresAsync(
         EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress,
-        CancellationToken cancellationToken)
+        CancellationToken cancellationToken) =>
+        EvaluateMeasuresAsync(parameters, scope, catalog, service, progress, null, cancellationToken);
+
+    /// <summary>As above; a synchronous answer (<paramref name="response"/>) also carries the cluster headers.</summary>
+    private static async Task<FhirResult> EvaluateMeasuresAsync(
+        EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress,
+        HttpResponse? response, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(parameters);
         ArgumentNullException.ThrowIfNull(catalog);
@@ -234,12 +240,18 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(issues);
         }
 
-        var (reports, failure) = await service.EvaluateAsync(repository, measures, parameters, scope, progress, cancellationToken);
-        if (failure is not null)
+        var outcome = await service.EvaluateAsync(repository, measures, parameters, scope, progress, cancellationToken);
+        if (outcome.Error is not null)
         {
-            return FhirResult.Outcome(failure);
+            return FhirResult.Outcome(outcome.Error);
         }
 
+        if (response is not null)
+        {
+            ClusterHeaders.Write(response, outcome.Cluster);
+        }
+
+        var reports = outcome.Reports;
         var bundle = new Bundle { Id = Guid.NewGuid().ToString(), Type = Bundle.BundleType.Collection };
         foreach (var report in reports)
         {
@@ -249,13 +261,16 @@ public static class MeasureEndpoints
         return FhirResult.Of(200, bundle);
     }
 
-    private static Task<FhirResult> EvaluateOneAsync(string id, EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, CancellationToken cancellationToken) =>
-        EvaluateOneAsync(id, parameters, scope, catalog, service, progress: null, cancellationToken);
-
     /// <summary>One measure for parsed parameters: what the GET and POST handlers and an asynchronous job answer.</summary>
-    internal static async Task<FhirResult> EvaluateOneAsync(
+    internal static Task<FhirResult> EvaluateOneAsync(
         string id, EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress,
-        CancellationToken cancellationToken)
+        CancellationToken cancellationToken) =>
+        EvaluateOneAsync(id, parameters, scope, catalog, service, progress, null, cancellationToken);
+
+    /// <summary>As above; a synchronous answer (<paramref name="response"/>) also carries the cluster headers.</summary>
+    private static async Task<FhirResult> EvaluateOneAsync(
+        string id, EvaluateParameters parameters, DataScope scope, MeasureCatalog catalog, MeasureEvaluationService service, IProgress<EvaluationProgress>? progress,
+        HttpResponse? response, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(catalog);
         ArgumentNullException.ThrowIfNull(service);
@@ -265,8 +280,18 @@ public static class MeasureEndpoints
             return FhirResult.Outcome(new FhirIssue(MeasureErrors.UnknownMeasure, $"no measure '{id}' is loaded"));
         }
 
-        var (reports, failure) = await service.EvaluateAsync(repository, [measure], parameters, scope, progress, cancellationToken);
-        return failure is not null ? FhirResult.Outcome(failure) : FhirResult.Of(200, reports[0]);
+        var outcome = await service.EvaluateAsync(repository, [measure], parameters, scope, progress, cancellationToken);
+        if (outcome.Error is not null)
+        {
+            return FhirResult.Outcome(outcome.Error);
+        }
+
+        if (response is not null)
+        {
+            ClusterHeaders.Write(response, outcome.Cluster);
+        }
+
+        return FhirResult.Of(200, outcome.Reports[0]);
     }
 
     private static async Task<(EvaluateParameters? Parameters, FhirResult? Error)> ReadParametersAsync(HttpRequest request, TimeProvider time, IOptions<IngestOptions> options, CancellationToken cancellationToken)

@@ -1,6 +1,7 @@
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Errors;
 using MeasureEval.Cluster.Hosting;
+using MeasureEval.Cluster.Partitions;
 using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Index;
 using MeasureEval.Core.Security;
@@ -20,12 +21,15 @@ namespace MeasureEval.Api.Measures;
 /// </remarks>
 public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider time, IOptions<EvaluationOptions> options, ClusterEvaluation? cluster = null)
 {
-    public Task<(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error)> EvaluateAsync(
+    public Task<EvaluationOutcome> EvaluateAsync(
         MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, DataScope scope, CancellationToken cancellationToken) =>
         EvaluateAsync(repository, measures, parameters, scope, progress: null, cancellationToken);
 
-    /// <summary>As above, telling <paramref name="progress"/> how many patients are done (asynchronous jobs).</summary>
-    public async Task<(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error)> EvaluateAsync(
+    /// <summary>
+    /// As above, telling <paramref name="progress"/> how far it is (asynchronous jobs): patients done on a single node,
+    /// partitions done in cluster mode.
+    /// </summary>
+    public async Task<EvaluationOutcome> EvaluateAsync(
         MeasureRepository repository, IReadOnlyList<MeasureDefinition> measures, EvaluateParameters parameters, DataScope scope,
         IProgress<EvaluationProgress>? progress, CancellationToken cancellationToken)
     {
@@ -44,7 +48,7 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
             var members = await GroupMembersAsync(parameters.SubjectId!, scope, cancellationToken);
             if (members is null)
             {
-                return ([], new FhirIssue(MeasureErrors.UnknownSubject, $"Group/{parameters.SubjectId} is not stored", "subject"));
+                return new([], new FhirIssue(MeasureErrors.UnknownSubject, $"Group/{parameters.SubjectId} is not stored", "subject"));
             }
 
             patientIds = members;
@@ -55,19 +59,20 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
             var facts = await store.GetPatientFactsAsync(parameters.SubjectId!, during, cancellationToken);
             if (facts is null)
             {
-                return ([], new FhirIssue(MeasureErrors.UnknownSubject, $"nothing is stored for Patient/{parameters.SubjectId}", "subject"));
+                return new([], new FhirIssue(MeasureErrors.UnknownSubject, $"nothing is stored for Patient/{parameters.SubjectId}", "subject"));
             }
 
             var results = evaluator.EvaluateAll(measures, facts, parameters.Period);
             progress?.Report(new EvaluationProgress(1, 1, EvaluationProgress.Patients));
-            return ([.. measures.Select((m, i) => builder.Individual(m, parameters.Period, results[i]))], null);
+            return new([.. measures.Select((m, i) => builder.Individual(m, parameters.Period, results[i]))], null);
         }
 
         var keepSubjects = parameters.ReportKind == ReportKind.SubjectList;
         IReadOnlyList<PopulationSummary> summaries;
+        ClusterRunResult? run = null;
         if (cluster is not null)
         {
-            summaries = (await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects, scope)).Summaries;
+            (summaries, run) = await cluster.SummarizeAsync(measures, parameters.Period, patientIds, parameters.PractitionerReference, keepSubjects, scope, progress);
         }
         else
         {
@@ -77,7 +82,7 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
                 measures, parameters.Period, keepSubjects, cancellationToken);
         }
 
-        return ([.. summaries.Select(s => parameters.ReportKind == ReportKind.SubjectList ? builder.SubjectList(s) : builder.Summary(s))], null);
+        return new([.. summaries.Select(s => parameters.ReportKind == ReportKind.SubjectList ? builder.SubjectList(s) : builder.Summary(s))], null, run);
     }
 
     /// <summary>
@@ -118,5 +123,15 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
 
         var group = FhirJson.Parse<Group>(json);
         return [.. group.Member.Where(m => m.Inactive != true).Select(m => FactExtractor.PatientIdOf(m.Entity)).OfType<string>().Distinct(StringComparer.Ordinal)];
+    }
+}
+
+/// <summary>The reports, or why there are none; <see cref="Cluster"/> says where a cluster run's partitions ran (null on a single node).</summary>
+public sealed record EvaluationOutcome(IReadOnlyList<MeasureReport> Reports, FhirIssue? Error, ClusterRunResult? Cluster = null)
+{
+    public void Deconstruct(out IReadOnlyList<MeasureReport> reports, out FhirIssue? error)
+    {
+        reports = Reports;
+        error = Error;
     }
 }

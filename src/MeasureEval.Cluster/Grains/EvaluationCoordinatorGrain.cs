@@ -17,12 +17,33 @@ internal sealed partial class EvaluationCoordinatorGrain(IOptions<MeasureCluster
 {
     private static readonly TimeSpan RetryDelay = TimeSpan.FromSeconds(1);
     private int _retries;
+    private int _done;
 
-    public async System.Threading.Tasks.Task<ClusterRunResult> RunAsync(ClusterEvaluationRequest request)
+    public async System.Threading.Tasks.Task<ClusterRunResult> RunAsync(ClusterEvaluationRequest request, IPartitionProgressObserver? progress)
     {
         ArgumentNullException.ThrowIfNull(request);
         var job = this.GetPrimaryKey().ToString("N");
-        var results = await System.Threading.Tasks.Task.WhenAll(Enumerable.Range(0, request.Partitions).Select(p => RunPartitionAsync(job, p, request)));
+        var results = await System.Threading.Tasks.Task.WhenAll(Enumerable.Range(0, request.Partitions).Select(async p =>
+        {
+            var result = await RunPartitionAsync(job, p, request);
+
+            // Continuations run one at a time on the grain's scheduler, so the count needs no lock.
+            _done++;
+            if (progress is not null)
+            {
+                try
+                {
+                    await progress.PartitionsDone(_done, request.Partitions);
+                }
+                catch (Exception e) when (e is OrleansException or TimeoutException)
+                {
+                    // Progress is for the caller's information; losing a count must not fail the evaluation.
+                    LogProgressLost(logger, e.GetType().Name);
+                }
+            }
+
+            return result;
+        }));
         var merged = request.MeasureIds.Select(id => new MeasurePartial { MeasureId = id, Subjects = request.KeepSubjects ? [] : null }).ToArray();
         foreach (var result in results)
         {
@@ -52,6 +73,9 @@ internal sealed partial class EvaluationCoordinatorGrain(IOptions<MeasureCluster
             }
         }
     }
+
+    [LoggerMessage(Level = LogLevel.Warning, Message = "A progress report to the caller failed ({Error})")]
+    private static partial void LogProgressLost(ILogger logger, string error);
 
     [LoggerMessage(Level = LogLevel.Warning, Message = "Partition {Partition} failed ({Error}); attempt {Attempt} on the live nodes")]
     private static partial void LogRetry(ILogger logger, int partition, int attempt, string error);

@@ -2,17 +2,20 @@ using MeasureEval.Cluster.Hosting;
 using MeasureEval.Cluster.Partitions;
 using MeasureEval.Cluster.Placement;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Partitions;
 using MeasureEval.Core.Storage;
 using MeasureEval.Engine;
 using Microsoft.Extensions.Logging;
+using Microsoft.Extensions.Options;
 using Orleans.Runtime;
 
 namespace MeasureEval.Cluster.Grains;
 
-/// <summary>Streams only its partition's patients from the shared store and aggregates them on the evaluation threads.</summary>
+/// <summary>Streams only its partition's rows of the shared store's index and aggregates them on the evaluation threads.</summary>
 [PartitionSpreadPlacement]
 internal sealed partial class PartitionGrain(
-    IResourceStore store, ClusterMeasureSource measures, EvaluationScheduler scheduler, ILocalSiloDetails silo, ILogger<PartitionGrain> logger)
+    IResourceStore store, ClusterMeasureSource measures, EvaluationScheduler scheduler, ILocalSiloDetails silo, IOptions<MeasureClusterOptions> options,
+    ILogger<PartitionGrain> logger)
     : Grain, IPartitionGrain
 {
     // Small batches keep facts and results short-lived (see the CLI's batch evaluation).
@@ -28,25 +31,29 @@ internal sealed partial class PartitionGrain(
         var period = new MeasurementPeriod(request.PeriodStart, request.PeriodEnd);
         var evaluator = new MeasureEvaluator(repository, new StoreRecordSource(store));
         var summaries = definitions.Select(m => new PopulationSummary(m, period, request.KeepSubjects)).ToArray();
-        IReadOnlyCollection<string>? ids = request.PatientIds?.Where(id => PatientPartitioner.PartitionOf(id, request.Partitions) == partition).ToArray();
-
-        var batch = new List<PatientFacts>(BatchSize);
-        if (ids is not { Count: 0 })
+        LogStarted(logger, partition);
+        if (options.Value.PartitionStartDelay > TimeSpan.Zero)
         {
-            await foreach (var patient in store.StreamPatientFactsAsync(ids, request.Scope, cancellationToken))
-            {
-                if (PatientPartitioner.PartitionOf(patient.PatientId, request.Partitions) != partition
-                    || (request.Practitioner is not null && patient.Demographics?.GeneralPractitioner != request.Practitioner))
-                {
-                    continue;
-                }
+            await System.Threading.Tasks.Task.Delay(options.Value.PartitionStartDelay, cancellationToken);
+        }
 
-                batch.Add(patient);
-                if (batch.Count == BatchSize)
-                {
-                    await EvaluateAsync(batch, evaluator, definitions, period, summaries, cancellationToken);
-                    batch = new List<PatientFacts>(BatchSize);
-                }
+        // Everyone: only this partition's rows of the index. A Group: only its members that fall in this partition.
+        var patients = request.PatientIds is null
+            ? store.StreamPartitionFactsAsync(partition, request.Partitions, request.Scope, cancellationToken)
+            : store.StreamPatientFactsAsync([.. request.PatientIds.Where(id => PatientPartitioner.PartitionOf(id, request.Partitions) == partition)], request.Scope, cancellationToken);
+        var batch = new List<PatientFacts>(BatchSize);
+        await foreach (var patient in patients)
+        {
+            if (request.Practitioner is not null && patient.Demographics?.GeneralPractitioner != request.Practitioner)
+            {
+                continue;
+            }
+
+            batch.Add(patient);
+            if (batch.Count == BatchSize)
+            {
+                await EvaluateAsync(batch, evaluator, definitions, period, summaries, cancellationToken);
+                batch = new List<PatientFacts>(BatchSize);
             }
         }
 
@@ -75,6 +82,9 @@ internal sealed partial class PartitionGrain(
 
             return batch.Count;
         }, cancellationToken);
+
+    [LoggerMessage(Level = LogLevel.Information, Message = "Partition {Partition} started on this node")]
+    private static partial void LogStarted(ILogger logger, int partition);
 
     [LoggerMessage(Level = LogLevel.Information, Message = "Partition {Partition} evaluated on this node")]
     private static partial void LogEvaluated(ILogger logger, int partition);

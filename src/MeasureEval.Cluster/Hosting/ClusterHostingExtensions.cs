@@ -24,6 +24,7 @@ public static class ClusterHostingExtensions
             .Validate(o => !o.Enabled || !string.IsNullOrWhiteSpace(o.RedisConnectionString), "Cluster:RedisConnectionString is required when Cluster:Enabled")
             .Validate(o => o.Partitions is > 0 and <= 4096, "Cluster:Partitions must be 1..4096")
             .Validate(o => o.PartitionAttempts > 0, "Cluster:PartitionAttempts must be positive")
+            .Validate(o => o.PartitionStartDelay >= TimeSpan.Zero, "Cluster:PartitionStartDelay must not be negative")
             .ValidateOnStart();
         var options = builder.Configuration.GetSection(MeasureClusterOptions.Section).Get<MeasureClusterOptions>() ?? new MeasureClusterOptions();
         if (!options.Enabled)

@@ -42,6 +42,12 @@ public sealed class MeasureClusterOptions
     /// <summary>Attempts per partition (a node dying mid-job costs one).</summary>
     public int PartitionAttempts { get; set; } = 8;
 
+    /// <summary>
+    /// For tests only: every partition waits this long after it has started (and logged so) before it reads, so a test
+    /// can kill a node while that node's partitions are certainly in flight. Zero (the default) in any deployment.
+    /// </summary>
+    public TimeSpan PartitionStartDelay { get; set; }
+
     /// <summary>Dedicated evaluation threads per node (0: one per core).</summary>
     public int EvaluationThreads { get; set; }
 }

@@ -51,6 +51,14 @@ public interface IResourceStore
     /// is null, otherwise just those (unknown and out-of-scope ids are skipped). Memory does not grow with the population.
     /// </summary>
     IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, DataScope scope, CancellationToken cancellationToken);
+
+    /// <summary>
+    /// Streams the index entries of one patient partition (<see cref="Partitions.PatientPartitioner.PartitionOf"/> =
+    /// <paramref name="partition"/>) in the scope, in ascending patient id order, reading only that partition's rows (a
+    /// range of the entries' stored partition key). The partitions 0 … <paramref name="partitionCount"/> − 1 are disjoint
+    /// and together are <see cref="StreamPatientFactsAsync"/> of everyone in the scope.
+    /// </summary>
+    IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(int partition, int partitionCount, DataScope scope, CancellationToken cancellationToken);
 }
 
 /// <summary>A write unit. Reads and searches through it see its own uncommitted writes (conditional create inside a transaction).</summary>

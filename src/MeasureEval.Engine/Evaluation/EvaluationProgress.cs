@@ -8,4 +8,7 @@ namespace MeasureEval.Engine;
 public readonly record struct EvaluationProgress(long Done, long Total, string Unit)
 {
     public const string Patients = "patients";
+
+    /// <summary>The unit of a cluster run: partition results back at the coordinator.</summary>
+    public const string Partitions = "partitions";
 }

@@ -4,6 +4,7 @@ using System.Globalization;
 using System.Runtime.CompilerServices;
 using System.Text;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Partitions;
 using MeasureEval.Core.Security;
 using MeasureEval.Core.Storage;
 using Microsoft.Extensions.Logging;
@@ -318,6 +319,25 @@ public abstract partial class SqlResourceStore : IResourceStore, IAsyncDisposabl
             {
                 yield return facts;
             }
+        }
+    }
+
+    public async IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(
+        int partition, int partitionCount, DataScope scope, [EnumeratorCancellation] CancellationToken cancellationToken)
+    {
+        ArgumentNullException.ThrowIfNull(scope);
+        var (from, until) = PatientPartitioner.KeyRange(partition, partitionCount);
+        var values = new List<object?> { from, until };
+        var sql = $"""
+            SELECT facts FROM patient_index p
+            WHERE partition_key >= @p0 AND partition_key < @p1 AND facts IS NOT NULL{ScopeCheck.MemberFilter(scope, "p.patient_id", values)}
+            ORDER BY patient_id
+            """;
+        await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
+        await using var command = Command(connection, null, sql, [.. values]);
+        await foreach (var facts in ReadEntriesAsync(command, scope, cancellationToken).ConfigureAwait(false))
+        {
+            yield return facts;
         }
     }
 

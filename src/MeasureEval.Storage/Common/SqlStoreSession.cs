@@ -3,6 +3,7 @@ using System.Globalization;
 using Hl7.Fhir.Model;
 using MeasureEval.Core.Fhir;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Partitions;
 using MeasureEval.Core.Storage;
 
 namespace MeasureEval.Storage.Common;
@@ -433,7 +434,7 @@ internal sealed class SqlStoreSession : IStoreSession
 
         var statements = _entries.Select(e => e.Value.IsEmpty
             ? (StoreSql.DeleteIndexEntry, new object?[] { e.Key })
-            : (StoreSql.UpsertIndexEntry, [e.Key, PatientFactsCodec.Encode(e.Value.ToFacts(e.Key))])).ToList();
+            : (StoreSql.UpsertIndexEntry, [e.Key, PatientFactsCodec.Encode(e.Value.ToFacts(e.Key)), (long)PatientPartitioner.PartitionKey(e.Key)])).ToList();
         await RunAsync(statements, cancellationToken).ConfigureAwait(false);
         _entries.Clear();
         _cachedFacts = 0;

@@ -42,10 +42,10 @@ internal static class StoreSql
 
     public const string StreamIndex = "SELECT facts FROM patient_index WHERE facts IS NOT NULL ORDER BY patient_id";
 
-    /// <summary>(patient_id, facts).</summary>
+    /// <summary>(patient_id, facts, partition_key).</summary>
     public const string UpsertIndexEntry = """
-        INSERT INTO patient_index (patient_id, facts) VALUES (@p0, @p1)
-        ON CONFLICT (patient_id) DO UPDATE SET facts = excluded.facts
+        INSERT INTO patient_index (patient_id, facts, partition_key) VALUES (@p0, @p1, @p2)
+        ON CONFLICT (patient_id) DO UPDATE SET facts = excluded.facts, partition_key = excluded.partition_key
         """;
 
     public const string DeleteIndexEntry = "DELETE FROM patient_index WHERE patient_id = @p0";

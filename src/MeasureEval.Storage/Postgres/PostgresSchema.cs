@@ -88,6 +88,11 @@ internal static class PostgresSchema
         );
         CREATE INDEX async_jobs_by_state ON async_jobs (state, created);
         """,
+        $"""
+        ALTER TABLE patient_index ADD COLUMN partition_key bigint;
+        {PartitionKeyBackfill}
+        CREATE INDEX patient_index_by_partition ON patient_index (partition_key);
+        """,
         // The audit trail (one row per audited request) and the patients each event concerned; not resources.
         """
         CREATE TABLE audit_events (
@@ -116,4 +121,20 @@ internal static class PostgresSchema
         CREATE INDEX audit_event_patients_by_event ON audit_event_patients (event_id);
         """,
     ];
+
+    /// <summary>
+    /// Fills partition_key (<c>PatientPartitioner.PartitionKey</c>: 32-bit FNV-1a of the patient id's UTF-8 bytes, times
+    /// 0x9E3779B9 modulo 2³²) where it is missing, one byte per recursive step. Products stay below 2⁶³ (bigint overflow is
+    /// an error): the last multiplication is split into the constant's 16-bit halves, 0x79B9 = 31161 and 0x9E37 = 40503.
+    /// </summary>
+    internal const string PartitionKeyBackfill = """
+        WITH RECURSIVE fnv(patient_id, bytes, i, hash) AS (
+            SELECT patient_id, convert_to(patient_id, 'UTF8'), 0, 2166136261::bigint FROM patient_index WHERE partition_key IS NULL
+            UNION ALL
+            SELECT patient_id, bytes, i + 1, ((hash # get_byte(bytes, i)::bigint) * 16777619) & 4294967295
+            FROM fnv WHERE i < length(bytes)
+        )
+        UPDATE patient_index p SET partition_key = (fnv.hash * 31161 + (((fnv.hash * 40503) & 65535) << 16)) & 4294967295 FROM fnv
+        WHERE fnv.patient_id = p.patient_id AND fnv.i = length(fnv.bytes);
+        """;
 }

@@ -88,6 +88,11 @@ internal static class SqliteSchema
         );
         CREATE INDEX async_jobs_by_state ON async_jobs (state, created);
         """,
+        $"""
+        ALTER TABLE patient_index ADD COLUMN partition_key INTEGER;
+        {PartitionKeyBackfill}
+        CREATE INDEX patient_index_by_partition ON patient_index (partition_key);
+        """,
         // The audit trail (one row per audited request) and the patients each event concerned; not resources.
         """
         CREATE TABLE audit_events (
@@ -116,4 +121,25 @@ internal static class SqliteSchema
         CREATE INDEX audit_event_patients_by_event ON audit_event_patients (event_id);
         """,
     ];
+
+    /// <summary>
+    /// Fills partition_key (<c>PatientPartitioner.PartitionKey</c>: 32-bit FNV-1a of the patient id's UTF-8 bytes, times
+    /// 0x9E3779B9 modulo 2³²) where it is missing, in SQL: hex() of a TEXT value is its UTF-8 bytes in hex; a recursive
+    /// step takes one byte (two hex digits); a XOR b is (a | b) − (a &amp; b), since SQLite has no XOR. Products stay below
+    /// 2⁶³ (SQLite turns an overflowing integer into a float): the last multiplication is split into the constant's
+    /// 16-bit halves, 0x79B9 = 31161 and 0x9E37 = 40503.
+    /// </summary>
+    internal const string PartitionKeyBackfill = """
+        WITH RECURSIVE fnv(patient_id, hex, i, hash) AS (
+            SELECT patient_id, hex(patient_id), 1, 2166136261 FROM patient_index WHERE partition_key IS NULL
+            UNION ALL
+            SELECT patient_id, hex, i + 2,
+                (((hash | ((instr('0123456789ABCDEF', substr(hex, i, 1)) - 1) * 16 + instr('0123456789ABCDEF', substr(hex, i + 1, 1)) - 1))
+                  - (hash & ((instr('0123456789ABCDEF', substr(hex, i, 1)) - 1) * 16 + instr('0123456789ABCDEF', substr(hex, i + 1, 1)) - 1)))
+                 * 16777619) & 4294967295
+            FROM fnv WHERE i < length(hex)
+        )
+        UPDATE patient_index SET partition_key = (fnv.hash * 31161 + (((fnv.hash * 40503) & 65535) << 16)) & 4294967295 FROM fnv
+        WHERE fnv.patient_id = patient_index.patient_id AND fnv.i > length(fnv.hex);
+        """;
 }

@@ -35,6 +35,9 @@ public sealed class StallingStore(IResourceStore inner) : IResourceStore
 
     public System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken) => inner.CountPatientFactsAsync(cancellationToken);
 
+    public IAsyncEnumerable<PatientFacts> StreamPartitionFactsAsync(int partition, int partitionCount, DataScope scope, CancellationToken cancellationToken) =>
+        StreamPatientFactsAsync(null, scope, cancellationToken);
+
     public async IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(
         IReadOnlyCollection<string>? patientIds, DataScope scope, [System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellationToken)
     {

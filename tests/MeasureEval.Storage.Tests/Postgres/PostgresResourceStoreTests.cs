@@ -25,6 +25,8 @@ public sealed class PostgresResourceStoreTests(PostgresServer server) : Resource
 
     private string? _connectionString;
 
+    protected override string PartitionKeyBackfill => PostgresSchema.PartitionKeyBackfill;
+
     protected override async System.Threading.Tasks.Task ExecuteSqlAsync(string sql)
     {
         await using var connection = new NpgsqlConnection(_connectionString);

@@ -72,6 +72,8 @@ public sealed class SqliteResourceStoreTests : ResourceStoreContract, IDisposabl
         Assert.False(await store.IsReadyAsync(default));
     }
 
+    protected override string PartitionKeyBackfill => SqliteSchema.PartitionKeyBackfill;
+
     protected override async System.Threading.Tasks.Task ExecuteSqlAsync(string sql)
     {
         await using var connection = new SqliteConnection($"Data Source={Path.Combine(_directory.FullName, "store.db")};Pooling=False");
