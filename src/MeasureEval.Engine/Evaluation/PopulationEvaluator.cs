@@ -1,7 +1,7 @@
 using System.Runtime.CompilerServices;
-using System.Text;
 using System.Threading.Channels;
 using MeasureEval.Core.Index;
+using MeasureEval.Core.Partitions;
 
 namespace MeasureEval.Engine;
 
@@ -11,8 +11,8 @@ namespace MeasureEval.Engine;
 /// </summary>
 /// <remarks>
 /// With <paramref name="workers"/> above 1 a summary is computed in parallel: one reader streams the patients and hands
-/// each to the worker its id hashes to (FNV-1a of the UTF-8 id, modulo the worker count: stable across runs and
-/// processes); every worker aggregates its own partial summaries, which are then added up in worker order. Counts,
+/// each to the worker its id hashes to (<see cref="PatientPartitioner"/>, the store's and the cluster's partitioning:
+/// stable across runs and processes); every worker aggregates its own partial summaries, which are then added up in worker order. Counts,
 /// strata and findings are sums, so the result equals the serial one exactly; subject lists hold the same ids (the
 /// report sorts them).
 /// </remarks>
@@ -65,19 +65,6 @@ public sealed class PopulationEvaluator(MeasureEvaluator evaluator, int workers 
         return await SummarizeParallelAsync(patients, measures, period, keepSubjects, progress, total, cancellationToken).ConfigureAwait(false);
     }
 
-    /// <summary>The worker a patient belongs to: FNV-1a (32-bit) of the UTF-8 id, modulo the worker count.</summary>
-    public static int PartitionOf(string patientId, int partitions)
-    {
-        ArgumentNullException.ThrowIfNull(patientId);
-        var hash = 2166136261u;
-        foreach (var b in Encoding.UTF8.GetBytes(patientId))
-        {
-            hash = (hash ^ b) * 16777619u;
-        }
-
-        return (int)(hash % (uint)partitions);
-    }
-
     private async Task<IReadOnlyList<PopulationSummary>> SummarizeParallelAsync(
         IAsyncEnumerable<PatientFacts> patients, IReadOnlyList<MeasureDefinition> measures, MeasurementPeriod period, bool keepSubjects,
         IProgress<EvaluationProgress>? progress, long total, CancellationToken cancellationToken)
@@ -118,7 +105,7 @@ public sealed class PopulationEvaluator(MeasureEvaluator evaluator, int workers 
         {
             await foreach (var patient in patients.WithCancellation(failed.Token).ConfigureAwait(false))
             {
-                await queues[PartitionOf(patient.PatientId, workers)].Writer.WriteAsync(patient, failed.Token).ConfigureAwait(false);
+                await queues[PatientPartitioner.PartitionOf(patient.PatientId, workers)].Writer.WriteAsync(patient, failed.Token).ConfigureAwait(false);
             }
         }
         catch (Exception e)

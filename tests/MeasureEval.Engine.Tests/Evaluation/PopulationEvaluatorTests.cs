@@ -59,14 +59,6 @@ public sealed class PopulationEvaluatorTests
         Assert.Equal(Enumerable.Range(1, Demo.Value.Count).Select(n => (long)n), seen.Order());
     }
 
-    [Fact]
-    public void PartitionOf_KnownIds_StableFnv1a()
-    {
-        // FNV-1a 32-bit of "a" is 0xE40C292C (test vector in the FNV reference, draft-eastlake-fnv); 3826002220 % 7 = 5.
-        Assert.Equal(5, PopulationEvaluator.PartitionOf("a", 7));
-        Assert.Equal(PopulationEvaluator.PartitionOf("patient-1", 16), PopulationEvaluator.PartitionOf("patient-1", 16));
-    }
-
     private static async IAsyncEnumerable<PatientFacts> Stream()
     {
         foreach (var patient in Demo.Value)
