@@ -20,7 +20,7 @@ namespace MeasureEval.Api.Jobs;
 public sealed partial class JobWorker(
     IJobStore store, JobRunner runner, IOptions<AsyncJobOptions> options, TimeProvider time, ILogger<JobWorker> logger) : BackgroundService
 {
-    /// <summary>How often ended jobs are looked for: retention is hours, a minute late is nothing.</summary>
+    /// <summary>How often ended jobs are looked for (or every retention, if shorter): retention is hours, a minute late is nothing.</summary>
     private static readonly TimeSpan CleanupInterval = TimeSpan.FromMinutes(1);
 
     private readonly SemaphoreSlim _wake = new(0);
@@ -126,7 +126,10 @@ public sealed partial class JobWorker(
         }
     }
 
-    /// <summary>Deletes jobs that ended more than the retention ago, at most once per <see cref="CleanupInterval"/>.</summary>
+    /// <summary>
+    /// Deletes jobs that ended more than the retention ago, at most once per <see cref="CleanupInterval"/>; only while
+    /// looking for work, so a worker with every slot busy deletes later.
+    /// </summary>
     private async Task CleanUpAsync(AsyncJobOptions settings, CancellationToken cancellationToken)
     {
         var now = time.GetUtcNow();
@@ -135,7 +138,7 @@ public sealed partial class JobWorker(
             return;
         }
 
-        _nextCleanup = now + CleanupInterval;
+        _nextCleanup = now + (settings.Retention < CleanupInterval ? settings.Retention : CleanupInterval);
         if (await store.DeleteFinishedAsync(now - settings.Retention, cancellationToken) is > 0 and var deleted)
         {
             LogDeleted(deleted);
