@@ -86,6 +86,19 @@ public sealed class BundleEndpointsTests(ApiFactory factory) : IClassFixture<Api
     }
 
     [Fact]
+    public async System.Threading.Tasks.Task Transaction_AuditEventEntry_RefusedAndNothingStored()
+    {
+        // AuditEvents are the server's own trail (FHIR R4 auditevent.html: recorded by the system that saw the event),
+        // so a client may not post one; the whole transaction fails (http.html "Transaction Processing Rules").
+        var response = await _client.PostAsync("/", Json(Input("Bundles/audit-event-transaction.json")));
+
+        Assert.Equal(HttpStatusCode.BadRequest, response.StatusCode);
+        Assert.Equal(["Bundle.entry[1].request.url"], Issue(await ReadAsync<OperationOutcome>(response), "MEV-BUNDLE-005").Expression);
+        var search = await ReadAsync<Bundle>(await _client.GetAsync("/Patient?identifier=http://ehr.riverbend.example.org/mrn|AUD-TX-1"));
+        Assert.Equal(0, search.Total);
+    }
+
+    [Fact]
     public async System.Threading.Tasks.Task Transaction_SameConditionalBundleTwice_NoDuplicates()
     {
         var json = Input("Bundles/conditional-transaction.json");

@@ -52,6 +52,19 @@ public sealed class IngestEndpointsTests(ApiFactory factory) : IClassFixture<Api
     }
 
     [Fact]
+    public async System.Threading.Tasks.Task Ingest_AuditEventLine_RefusedOthersStored()
+    {
+        var response = await _client.PostAsync("/$ingest", Json(Input("Ingest/audit-event.ndjson"), "application/fhir+ndjson"));
+
+        Assert.Equal(HttpStatusCode.OK, response.StatusCode);
+        var result = await ReadAsync<Parameters>(response);
+        Assert.Equal(1, ((Integer)Param(result, "stored").Value).Value);
+        Assert.Equal(1, ((Integer)Param(result, "refused").Value).Value);
+        Assert.Equal(["MEV-AUDIT-002"], Codes((OperationOutcome)Param(result, "outcome").Resource).Where(c => c != "MEV-INGEST-002"));
+        Assert.Equal(HttpStatusCode.OK, (await _client.GetAsync("/Patient/aud-ing-1")).StatusCode);
+    }
+
+    [Fact]
     public async System.Threading.Tasks.Task Ingest_SameIdTwice_NewVersion()
     {
         var line = """{"resourceType":"Patient","id":"upsert-1","gender":"female"}""";

@@ -261,6 +261,12 @@ public sealed class BundlePlanner(SearchService search)
             return false;
         }
 
+        if (FhirResourceTypes.IsServerKept(segments[0]))
+        {
+            problem = $"{segments[0]} is written by the server only (the audit trail); read it with GET /{segments[0]} as an administrator.";
+            return false;
+        }
+
         int? version = null;
         var shapeOk = segments.Length switch
         {

@@ -2,6 +2,7 @@ using System.Globalization;
 using System.Threading.Channels;
 using Hl7.Fhir.Model;
 using MeasureEval.Api.Errors;
+using MeasureEval.Api.Fhir;
 using MeasureEval.Core.Storage;
 using Microsoft.Extensions.Logging;
 using Microsoft.Extensions.Options;
@@ -51,6 +52,12 @@ public sealed partial class IngestProcessor(IResourceStore store, IOptions<Inges
                 {
                     var where = unit.Line is { } line ? $"Line {line}: " : "";
                     found.Add(new FhirIssue(ErrorCatalogue.IngestIdMissing, $"{where}the {resource.TypeName} has no id; $ingest upserts by id.", $"{unit.Root}.id", unit.Line));
+                }
+
+                if (unit.Resource is { } kept && FhirResourceTypes.IsServerKept(kept.TypeName))
+                {
+                    var where = unit.Line is { } line ? $"Line {line}: " : "";
+                    found.Add(new FhirIssue(ErrorCatalogue.AuditEventNotAResource, $"{where}{kept.TypeName} is written by the server only.", unit.Root, unit.Line));
                 }
 
                 if (found.Count > 0 || unit.Resource is null)

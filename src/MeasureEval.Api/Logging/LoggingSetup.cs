@@ -61,7 +61,7 @@ public static class LoggingSetup
             {
                 config.WriteTo.Console(outputTemplate: "[{Timestamp:HH:mm:ss} {Level:u3}] {RequestId} {Message:lj}{NewLine}{Exception}", formatProvider: System.Globalization.CultureInfo.InvariantCulture);
             }
-        });
+        }, preserveStaticLogger: true);
         return builder;
     }
 
@@ -69,6 +69,8 @@ public static class LoggingSetup
     public static IApplicationBuilder UseMeasureEvalRequestLogging(this IApplicationBuilder app) =>
         app.UseSerilogRequestLogging(options =>
         {
+            // This host's logger, not the static one: several hosts in one process (tests) would write into each other's.
+            options.Logger = app.ApplicationServices.GetRequiredService<Serilog.ILogger>();
             options.MessageTemplate = "HTTP {RequestMethod:l} {RouteTemplate:l} responded {StatusCode} in {Elapsed:0.0} ms";
             options.GetMessageTemplateProperties = (context, _, elapsed, status) =>
             [

@@ -43,8 +43,15 @@ public static class FactExtractor
     }
 
     /// <summary>The patient id a reference points at ("Patient/123", an absolute URL ending so, or null).</summary>
-    public static string? PatientIdOf(ResourceReference? reference)
+    public static string? PatientIdOf(ResourceReference? reference) => IdOf(reference, "Patient");
+
+    /// <summary>
+    /// The id a reference to <paramref name="resourceType"/> points at: "Type/123", an absolute URL ending so, or a
+    /// versioned form of either; null for other types, contained (#) and logical-only references.
+    /// </summary>
+    public static string? IdOf(ResourceReference? reference, string resourceType)
     {
+        ArgumentException.ThrowIfNullOrEmpty(resourceType);
         var text = reference?.Reference;
         if (string.IsNullOrEmpty(text))
         {
@@ -57,13 +64,14 @@ public static class FactExtractor
             text = text[..historyAt];
         }
 
-        var marker = text.LastIndexOf("Patient/", StringComparison.Ordinal);
+        var prefix = resourceType + "/";
+        var marker = text.LastIndexOf(prefix, StringComparison.Ordinal);
         if (marker < 0 || (marker > 0 && text[marker - 1] != '/'))
         {
             return null;
         }
 
-        var id = text[(marker + "Patient/".Length)..];
+        var id = text[(marker + prefix.Length)..];
         return id.Length == 0 || id.Contains('/', StringComparison.Ordinal) ? null : id;
     }
 

@@ -70,30 +70,8 @@ internal static partial class PayerLinks
     }
 
     /// <summary>The Organization id a reference points at ("Organization/x", an absolute URL ending so, or null).</summary>
-    public static string? OrganizationIdOf(ResourceReference? reference)
-    {
-        var text = reference?.Reference;
-        if (string.IsNullOrEmpty(text))
-        {
-            return null;
-        }
-
-        var historyAt = text.IndexOf("/_history/", StringComparison.Ordinal);
-        if (historyAt >= 0)
-        {
-            text = text[..historyAt];
-        }
-
-        const string marker = "Organization/";
-        var at = text.LastIndexOf(marker, StringComparison.Ordinal);
-        if (at < 0 || (at > 0 && text[at - 1] != '/'))
-        {
-            return null;
-        }
-
-        var id = text[(at + marker.Length)..];
-        return ResourceKeys.IsValidId(id) ? id : null;
-    }
+    public static string? OrganizationIdOf(ResourceReference? reference) =>
+        FactExtractor.IdOf(reference, "Organization") is { } id && ResourceKeys.IsValidId(id) ? id : null;
 
     /// <summary>The first day a stated FHIR date/dateTime can mean ("2026" → 2026-01-01); the time of day is not used.</summary>
     internal static string? FirstDay(string? stated) =>
