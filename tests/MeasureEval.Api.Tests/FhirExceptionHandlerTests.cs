@@ -59,7 +59,7 @@ public sealed class FhirExceptionHandlerTests(ApiFactory factory) : IClassFixtur
 
         public System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, DataScope scope, CancellationToken cancellationToken) => inner.GetPatientFactsAsync(patientId, scope, cancellationToken);
 
-        public System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken) => inner.CountPatientFactsAsync(cancellationToken);
+        public System.Threading.Tasks.Task<long> CountPatientFactsAsync(DataScope scope, CancellationToken cancellationToken) => inner.CountPatientFactsAsync(scope, cancellationToken);
 
         public IAsyncEnumerable<PatientFacts> StreamPatientFactsAsync(IReadOnlyCollection<string>? patientIds, DataScope scope, CancellationToken cancellationToken) =>
             inner.StreamPatientFactsAsync(patientIds, scope, cancellationToken);

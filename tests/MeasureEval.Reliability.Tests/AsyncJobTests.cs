@@ -21,12 +21,14 @@ public sealed class AsyncJobTests(ITestOutputHelper output) : IDisposable
 
     private readonly string _directory = Directory.CreateTempSubdirectory("measureeval-async-").FullName;
 
-    /// <summary>Each patient of a job waits 3 ms (Jobs:PatientDelay, the test hook), so 2,000 patients take about 6 s.</summary>
+    /// <summary>Each patient of a job waits 3 ms (Jobs:PatientDelay, the test hook), so 2,000 patients take about 6 s; a 2 s lease.</summary>
     private static readonly Dictionary<string, string> SlowJobs = new()
     {
         ["Jobs__PatientDelay"] = "00:00:00.003",
         ["Jobs__PollInterval"] = "00:00:00.200",
         ["Jobs__RetryAfterSeconds"] = "1",
+        // The killed process's lease runs out this soon, so the restarted one takes the job over quickly.
+        ["Jobs__LeaseDuration"] = "00:00:02",
     };
 
     [Fact]

@@ -150,6 +150,20 @@ public abstract partial class ResourceStoreContract
     }
 
     [SkippableFact]
+    public async Task CountPatientFactsAsync_Payer_CountsItsMembersLikeTheStream()
+    {
+        await using var store = await CreateStoreAsync();
+        await WriteAllAsync(store, Person("pa"), Person("pa2"), Person("pb"), CoverageOf("cov-a", "pa", "plan-a"), CoverageOf("cov-a2", "pa2", "plan-a"),
+            CoverageOf("cov-b", "pb", "plan-b"), Person("nobody"), Plan("plan-a"), Plan("plan-b"));
+
+        // The progress total of a payer's job: the members a full stream in that scope yields.
+        Assert.Equal(2, await store.CountPatientFactsAsync(PlanA, default));
+        Assert.Equal(1, await store.CountPatientFactsAsync(PlanB, default));
+        Assert.Equal(4, await store.CountPatientFactsAsync(DataScope.Unrestricted, default));
+        Assert.Equal(2, (await ToListAsync(store.StreamPatientFactsAsync(null, PlanA, default))).Count);
+    }
+
+    [SkippableFact]
     public async Task Scope_OtherPayersCoverage_HiddenAsResourceAndAsFact()
     {
         await using var store = await CreateStoreAsync();

@@ -11,7 +11,7 @@ public sealed class AsyncJobOptions
     [Range(0, 64)]
     public int Workers { get; set; } = 1;
 
-    /// <summary>Runs a job may start (a restart re-runs it from the beginning); then it is marked failed.</summary>
+    /// <summary>Runs a job may start (a claim of an expired lease re-runs it from the beginning); then it is marked failed.</summary>
     [Range(1, 100)]
     public int MaxAttempts { get; set; } = 3;
 
@@ -22,6 +22,18 @@ public sealed class AsyncJobOptions
     /// <summary>How often the worker looks for queued jobs it was not told about, and saves a running job's progress.</summary>
     [Range(typeof(TimeSpan), "00:00:00.050", "00:10:00")]
     public TimeSpan PollInterval { get; set; } = TimeSpan.FromSeconds(1);
+
+    /// <summary>
+    /// How long a running job stays held by its worker without a renewal. The worker renews at least every third of it
+    /// (and at each progress save); once it has run out (the process died) any worker on the store takes the job over.
+    /// A restarted process waits for this too, so short enough to resume soon, long enough to ride out a slow database.
+    /// </summary>
+    [Range(typeof(TimeSpan), "00:00:00.300", "01:00:00")]
+    public TimeSpan LeaseDuration { get; set; } = TimeSpan.FromSeconds(30);
+
+    /// <summary>How long a completed, failed or cancelled job (and its answer) is kept after it ended; then deleted.</summary>
+    [Range(typeof(TimeSpan), "00:00:01", "365.00:00:00")]
+    public TimeSpan Retention { get; set; } = TimeSpan.FromHours(24);
 
     /// <summary>
     /// Test and demonstration hook: a pause per patient in a job, so that a small population shows progress, can be

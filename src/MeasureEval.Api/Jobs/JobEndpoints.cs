@@ -32,11 +32,12 @@ public static class JobEndpoints
     }
 
     public static async Task<Results<StoredJobAnswer, FhirResult>> StatusAsync(
-        string id, HttpContext context, IJobStore store, IOptions<AsyncJobOptions> options, CancellationToken cancellationToken)
+        string id, HttpContext context, IJobStore store, IOptions<AsyncJobOptions> options, TimeProvider time, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(context);
         ArgumentNullException.ThrowIfNull(store);
         ArgumentNullException.ThrowIfNull(options);
+        ArgumentNullException.ThrowIfNull(time);
         var job = await store.GetAsync(id, cancellationToken);
         if (job is null || !JobCaller.Parse(job.Claims).MayBeSeenBy(context.User))
         {
@@ -49,12 +50,13 @@ public static class JobEndpoints
                 return FhirResult.Outcome([new FhirIssue(JobErrors.Cancelled, $"job {id} was cancelled")]);
             case JobState.Queued or JobState.Running:
                 return FhirResult.Empty(StatusCodes.Status202Accepted)
-                    .WithHeader("X-Progress", Progress(job))
+                    .WithHeader("X-Progress", Progress(job, time.GetUtcNow()))
                     .WithHeader(HeaderNames.RetryAfter, options.Value.RetryAfterSeconds.ToString(CultureInfo.InvariantCulture));
             default:
-                // Finished: the answer is stored with the job; gone only if a cancellation raced this read.
+                // Finished: the answer is stored with the job; gone only if a cancellation raced this read. It is kept
+                // Jobs:Retention after the job ended (then the id is unknown: MEV-JOB-001), which Expires tells.
                 return await store.GetResultAsync(id, cancellationToken) is { } result
-                    ? new StoredJobAnswer(result)
+                    ? new StoredJobAnswer(result, job.Updated + options.Value.Retention)
                     : FhirResult.Outcome([new FhirIssue(JobErrors.Cancelled, $"job {id} was cancelled")]);
         }
     }
@@ -79,13 +81,21 @@ public static class JobEndpoints
         return FhirResult.Outcome(StatusCodes.Status202Accepted, [new FhirIssue(JobErrors.CancelAccepted, $"job {id} is cancelled; a result, if any, is deleted")]);
     }
 
-    /// <summary>"41,200 of 100,000 patients"; "queued" before a worker takes the job.</summary>
-    internal static string Progress(JobRecord job)
+    /// <summary>
+    /// "41,200 of 100,000 patients"; "queued" before a worker takes the job; "interrupted" while a job whose worker
+    /// stopped (its lease ran out) waits for another worker.
+    /// </summary>
+    internal static string Progress(JobRecord job, DateTimeOffset now)
     {
         ArgumentNullException.ThrowIfNull(job);
         if (job.State == JobState.Queued)
         {
-            return job.Attempts == 0 ? "queued" : $"queued again after a restart (attempt {job.Attempts + 1})";
+            return "queued";
+        }
+
+        if (job.LeaseUntil is not { } until || until <= now)
+        {
+            return $"interrupted; waiting to run again (attempt {job.Attempts + 1})";
         }
 
         if (job.Unit is null)
@@ -101,8 +111,11 @@ public static class JobEndpoints
     private static FhirResult NotFound(string id) => FhirResult.Outcome([new FhirIssue(JobErrors.NotFound, $"no job '{id}' for this caller")]);
 }
 
-/// <summary>A finished job's stored answer: its status and content type, the body sent compressed when the client accepts gzip.</summary>
-public sealed class StoredJobAnswer(JobResult result) : IResult, IStatusCodeHttpResult
+/// <summary>
+/// A finished job's stored answer: its status and content type, the body sent compressed when the client accepts gzip,
+/// and <c>Expires</c> (RFC 9111 §5.3, an HTTP-date) when it will be deleted.
+/// </summary>
+public sealed class StoredJobAnswer(JobResult result, DateTimeOffset expires) : IResult, IStatusCodeHttpResult
 {
     public int? StatusCode => result.Status;
 
@@ -112,6 +125,7 @@ public sealed class StoredJobAnswer(JobResult result) : IResult, IStatusCodeHttp
         var response = httpContext.Response;
         response.StatusCode = result.Status;
         response.ContentType = result.ContentType;
+        response.Headers.Expires = expires.ToString("R", CultureInfo.InvariantCulture);
         if (httpContext.Request.Headers.AcceptEncoding.Any(v => v is not null && v.Contains("gzip", StringComparison.OrdinalIgnoreCase)))
         {
             response.Headers.ContentEncoding = "gzip";

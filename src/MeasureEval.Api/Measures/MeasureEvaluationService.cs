@@ -86,14 +86,14 @@ public sealed class MeasureEvaluationService(IResourceStore store, TimeProvider 
     }
 
     /// <summary>
-    /// The patients a stream will read, for progress: the ids asked for, else every index entry; 0 (unknown) for a
-    /// payer, whose members are a subset the store does not count ahead.
+    /// The patients a stream will read, for progress: the ids asked for, else every index entry in the scope (for a
+    /// payer: its members).
     /// </summary>
     internal static async Task<long> PatientTotalAsync(IResourceStore store, IReadOnlyCollection<string>? patientIds, DataScope scope, CancellationToken cancellationToken)
     {
         ArgumentNullException.ThrowIfNull(store);
         ArgumentNullException.ThrowIfNull(scope);
-        return patientIds?.Count ?? (scope.IsUnrestricted ? await store.CountPatientFactsAsync(cancellationToken) : 0);
+        return patientIds?.Count ?? await store.CountPatientFactsAsync(scope, cancellationToken);
     }
 
     /// <summary>The practitioner's panel; progress counts every patient read (filtered out or not), so it reaches the total.</summary>

@@ -43,8 +43,11 @@ public interface IResourceStore
     /// </summary>
     System.Threading.Tasks.Task<PatientFacts?> GetPatientFactsAsync(string patientId, DataScope scope, CancellationToken cancellationToken);
 
-    /// <summary>How many patients have an index entry (what a full <see cref="StreamPatientFactsAsync"/> yields), for progress reports.</summary>
-    System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken);
+    /// <summary>
+    /// How many patients in the scope have an index entry (what a full <see cref="StreamPatientFactsAsync"/> with the same
+    /// scope yields), for progress reports.
+    /// </summary>
+    System.Threading.Tasks.Task<long> CountPatientFactsAsync(DataScope scope, CancellationToken cancellationToken);
 
     /// <summary>
     /// Streams index entries in ascending patient id order: all patients in the scope when <paramref name="patientIds"/>

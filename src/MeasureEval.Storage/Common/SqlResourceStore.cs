@@ -277,10 +277,14 @@ public abstract partial class SqlResourceStore : IResourceStore, IAsyncDisposabl
             : null;
     }
 
-    public async System.Threading.Tasks.Task<long> CountPatientFactsAsync(CancellationToken cancellationToken)
+    public async System.Threading.Tasks.Task<long> CountPatientFactsAsync(DataScope scope, CancellationToken cancellationToken)
     {
+        ArgumentNullException.ThrowIfNull(scope);
         await using var connection = await OpenConnectionAsync(cancellationToken).ConfigureAwait(false);
-        await using var command = Command(connection, null, "SELECT COUNT(*) FROM patient_index WHERE facts IS NOT NULL");
+        // The same filter as a full StreamPatientFactsAsync, so the count is what that stream yields for the scope.
+        var values = new List<object?>();
+        var sql = $"SELECT COUNT(*) FROM patient_index p WHERE facts IS NOT NULL{ScopeCheck.MemberFilter(scope, "p.patient_id", values)}";
+        await using var command = Command(connection, null, sql, [.. values]);
         return Convert.ToInt64(await command.ExecuteScalarAsync(cancellationToken).ConfigureAwait(false), CultureInfo.InvariantCulture);
     }
 

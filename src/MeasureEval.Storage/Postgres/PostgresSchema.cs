@@ -120,6 +120,12 @@ internal static class PostgresSchema
         );
         CREATE INDEX audit_event_patients_by_event ON audit_event_patients (event_id);
         """,
+        // Leases on running jobs: the worker holding one (owner) and until when (Unix ms); an expired lease may be claimed.
+        """
+        ALTER TABLE async_jobs ADD COLUMN owner text COLLATE "C";
+        ALTER TABLE async_jobs ADD COLUMN lease_until bigint;
+        CREATE INDEX async_jobs_by_updated ON async_jobs (updated);
+        """,
     ];
 
     /// <summary>
