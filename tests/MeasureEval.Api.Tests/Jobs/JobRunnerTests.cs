@@ -1,6 +1,7 @@
 using System.Net;
 using System.Text.Json.Nodes;
 using MeasureEval.Api.Tests.Security;
+using MeasureEval.Api.Tests.Support;
 using MeasureEval.Testing;
 
 namespace MeasureEval.Api.Tests.Jobs;
@@ -21,20 +22,8 @@ public sealed class JobRunnerTests(PayerScopeFixture fixture) : IClassFixture<Pa
 
         var synchronous = await payer.GetStringAsync(new Uri(SubjectList, UriKind.Relative));
         var everyone = await analyst.GetStringAsync(new Uri(SubjectList, UriKind.Relative));
-        using var kickOff = new HttpRequestMessage(HttpMethod.Get, SubjectList);
-        kickOff.Headers.TryAddWithoutValidation("Prefer", "respond-async");
-        using var accepted = await payer.SendAsync(kickOff);
-        Assert.Equal(HttpStatusCode.Accepted, accepted.StatusCode);
-        var status = accepted.Content.Headers.ContentLocation!;
-
-        var deadline = DateTime.UtcNow.AddSeconds(60);
-        HttpResponseMessage answer;
-        while ((answer = await payer.GetAsync(status)).StatusCode == HttpStatusCode.Accepted)
-        {
-            Assert.True(DateTime.UtcNow < deadline, "the job did not finish within 60 s");
-            await Task.Delay(100);
-        }
-
+        var (answer, _) = await AsyncPolling.KickOffAndWaitAsync(payer, SubjectList);
+        using var final = answer;
         Assert.Equal(HttpStatusCode.OK, answer.StatusCode);
         var asynchronous = await answer.Content.ReadAsStringAsync();
         Assert.Equal(Normalized(synchronous), Normalized(asynchronous));

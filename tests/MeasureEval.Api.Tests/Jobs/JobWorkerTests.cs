@@ -77,21 +77,8 @@ public sealed class JobWorkerTests : IClassFixture<JobWorkerTests.ShortRetention
     public async Task CleanUp_FinishedJobPastRetention_StatusUrlAnswersUnknown()
     {
         using var client = _factory.CreateClient();
-        using var kickOff = new HttpRequestMessage(HttpMethod.Get, Evaluate);
-        kickOff.Headers.TryAddWithoutValidation("Prefer", "respond-async");
         var before = DateTimeOffset.UtcNow;
-        using var accepted = await client.SendAsync(kickOff);
-        Assert.Equal(HttpStatusCode.Accepted, accepted.StatusCode);
-        var status = accepted.Content.Headers.ContentLocation!;
-
-        var deadline = DateTime.UtcNow.AddSeconds(60);
-        HttpResponseMessage answer;
-        while ((answer = await client.GetAsync(status)).StatusCode == HttpStatusCode.Accepted)
-        {
-            Assert.True(DateTime.UtcNow < deadline, "the job did not finish within 60 s");
-            await Task.Delay(100);
-        }
-
+        var (answer, status) = await AsyncPolling.KickOffAndWaitAsync(client, Evaluate);
         Assert.Equal(HttpStatusCode.OK, answer.StatusCode);
         // Expires (RFC 9111 §5.3, an HTTP-date, whole seconds): when the job ended plus Jobs:Retention (2 s here).
         var expires = answer.Content.Headers.Expires;
@@ -99,6 +86,7 @@ public sealed class JobWorkerTests : IClassFixture<JobWorkerTests.ShortRetention
         Assert.InRange(expires.Value, before.AddSeconds(1), DateTimeOffset.UtcNow.AddSeconds(3));
         answer.Dispose();
 
+        var deadline = DateTime.UtcNow.AddSeconds(60);
         HttpResponseMessage gone;
         while ((gone = await client.GetAsync(status)).StatusCode == HttpStatusCode.OK)
         {
