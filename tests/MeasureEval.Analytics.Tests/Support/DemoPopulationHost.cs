@@ -1,9 +1,6 @@
 using System.Net;
 using System.Net.Http.Headers;
-using Microsoft.AspNetCore.Hosting;
-using Microsoft.AspNetCore.Mvc.Testing;
 using MeasureEval.Testing;
-using Microsoft.Data.Sqlite;
 
 namespace MeasureEval.Analytics.Tests.Support;
 
@@ -11,11 +8,9 @@ namespace MeasureEval.Analytics.Tests.Support;
 /// The real API over a temporary SQLite store holding the committed demo population (fhir-bundles/demo: the invented
 /// Riverbend Community Health network, 500 patients, shaped for 2026), loaded once through the transaction endpoint.
 /// </summary>
-public sealed class DemoPopulationHost : WebApplicationFactory<Program>, IAsyncLifetime
+public sealed class DemoPopulationHost : TemporarySqliteServiceFactory<Program>, IAsyncLifetime
 {
     public const string Period = "periodStart=2026-01-01&periodEnd=2026-12-31";
-
-    private readonly string _directory = Directory.CreateTempSubdirectory("measureeval-analytics-").FullName;
 
     public static string RepositoryRoot
     {
@@ -49,38 +44,10 @@ public sealed class DemoPopulationHost : WebApplicationFactory<Program>, IAsyncL
 
     Task IAsyncLifetime.DisposeAsync() => Task.CompletedTask;
 
-    protected override void ConfigureWebHost(IWebHostBuilder builder)
+    protected override IReadOnlyDictionary<string, string?> Settings => new Dictionary<string, string?>
     {
-        ArgumentNullException.ThrowIfNull(builder);
-        builder.UseSetting("Storage:Provider", "Sqlite");
-        builder.UseSetting("Storage:ConnectionString", $"Data Source={Path.Combine(_directory, "store.db")}");
-        builder.UseSetting("Measures:Directory", Path.Combine(RepositoryRoot, "measures"));
-        foreach (var (key, value) in TestTokens.Settings)
-        {
-            builder.UseSetting(key, value);
-        }
-    }
-
-    /// <summary>Clients act as an administrator (the demo data is loaded through them).</summary>
-    protected override void ConfigureClient(HttpClient client)
-    {
-        base.ConfigureClient(client);
-        client.DefaultRequestHeaders.Authorization = TestTokens.Header("admin");
-    }
-
-    protected override void Dispose(bool disposing)
-    {
-        base.Dispose(disposing);
-        SqliteConnection.ClearAllPools();
-        try
-        {
-            Directory.Delete(_directory, recursive: true);
-        }
-        catch (IOException)
-        {
-            // A file still held open goes with the temp folder later; not a test failure.
-        }
-    }
+        ["Measures:Directory"] = Path.Combine(RepositoryRoot, "measures"),
+    };
 }
 
 [CollectionDefinition(Name)]

@@ -1,14 +1,10 @@
-using Microsoft.AspNetCore.Hosting;
-using Microsoft.AspNetCore.Mvc.Testing;
 using MeasureEval.Testing;
-using Microsoft.Data.Sqlite;
 
 namespace MeasureEval.Reliability.Tests.Support;
 
 /// <summary>The service in-process over a temporary SQLite file; <see cref="Client"/> is the one place a client gets its credentials.</summary>
-public sealed class ReliabilityApiFactory : WebApplicationFactory<Program>
+public sealed class ReliabilityApiFactory : TemporarySqliteServiceFactory<Program>
 {
-    private readonly string _directory = Directory.CreateTempSubdirectory("measureeval-reliability-").FullName;
     private readonly string? _postgres;
 
     public ReliabilityApiFactory()
@@ -20,41 +16,26 @@ public sealed class ReliabilityApiFactory : WebApplicationFactory<Program>
     /// <summary>Over PostgreSQL (a schema of the test server) instead of SQLite.</summary>
     public static ReliabilityApiFactory OnPostgres(string connectionString) => new(connectionString);
 
-    public string DatabasePath => Path.Combine(_directory, "store.db");
+    /// <summary>A client with administrator credentials: these tests ingest and evaluate with the same client.</summary>
+    public HttpClient Client() => CreateClient();
 
-    public HttpClient Client()
+    protected override IReadOnlyDictionary<string, string?> Settings
     {
-        var client = CreateClient();
-        // Admin: these tests ingest and evaluate with the same client.
-        client.DefaultRequestHeaders.Authorization = TestTokens.Header("admin");
-        return client;
-    }
+        get
+        {
+            var settings = new Dictionary<string, string?>
+            {
+                ["Measures:Directory"] = Path.Combine(RepositoryRoot.Path, "measures"),
+                // One client sends thousands of requests a minute here (FUZZ_CASES soaks far more): beyond any per-client limit.
+                ["Limits:RequestsPerMinute"] = "100000000",
+            };
+            if (_postgres is not null)
+            {
+                settings["Storage:Provider"] = "Postgres";
+                settings["Storage:ConnectionString"] = _postgres;
+            }
 
-    protected override void ConfigureWebHost(IWebHostBuilder builder)
-    {
-        ArgumentNullException.ThrowIfNull(builder);
-        builder.UseSetting("Storage:Provider", _postgres is null ? "Sqlite" : "Postgres");
-        builder.UseSetting("Storage:ConnectionString", _postgres ?? $"Data Source={DatabasePath}");
-        builder.UseSetting("Measures:Directory", Path.Combine(RepositoryRoot.Path, "measures"));
-        // One client sends thousands of requests a minute here (FUZZ_CASES soaks far more): beyond any per-client limit.
-        builder.UseSetting("Limits:RequestsPerMinute", "100000000");
-        foreach (var (key, value) in TestTokens.Settings)
-        {
-            builder.UseSetting(key, value);
-        }
-    }
-
-    protected override void Dispose(bool disposing)
-    {
-        base.Dispose(disposing);
-        SqliteConnection.ClearAllPools();
-        try
-        {
-            Directory.Delete(_directory, recursive: true);
-        }
-        catch (IOException)
-        {
-            // A file still open is left to the OS temp cleanup; not a test failure.
+            return settings;
         }
     }
 }
