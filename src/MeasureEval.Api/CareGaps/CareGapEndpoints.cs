@@ -60,15 +60,10 @@ public static class CareGapEndpoints
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(options);
-        var parsed = await FhirRequestBody.ReadResourceAsync(request, options.Value, cancellationToken);
-        if (!parsed.Succeeded)
+        var (body, refusal) = await FhirRequestBody.ReadResourceAsync<Parameters>(request, options.Value, cancellationToken);
+        if (body is null)
         {
-            return FhirResult.Outcome(parsed.Issues);
-        }
-
-        if (parsed.Resource is not Parameters body)
-        {
-            return FhirResult.Outcome(new FhirIssue(ErrorCatalogue.ResourceTypeMismatch, $"the body is a {parsed.Resource!.TypeName}, not Parameters", "Parameters"));
+            return refusal!;
         }
 
         var issues = new List<FhirIssue>();

@@ -55,6 +55,25 @@ public static class FhirRequestBody
         }
     }
 
+    /// <summary>
+    /// Reads the body as a resource of type <typeparamref name="T"/>: the resource, or the OperationOutcome to answer
+    /// (every parse issue, or a type mismatch located at the expected type).
+    /// </summary>
+    public static async Task<(T? Resource, FhirResult? Refusal)> ReadResourceAsync<T>(HttpRequest request, IngestOptions options, CancellationToken cancellationToken)
+        where T : Resource
+    {
+        var parsed = await ReadResourceAsync(request, options, cancellationToken);
+        if (!parsed.Succeeded)
+        {
+            return (null, FhirResult.Outcome(parsed.Issues));
+        }
+
+        var expected = typeof(T).Name; // the model classes carry the FHIR type names
+        return parsed.Resource is T resource
+            ? (resource, null)
+            : (null, FhirResult.Outcome(new FhirIssue(ErrorCatalogue.ResourceTypeMismatch, $"the body is a {parsed.Resource!.TypeName}, not {expected}", expected)));
+    }
+
     public static ParsedBody Parse(ReadOnlySequence<byte> body, int maxDepth)
     {
         if (IsBlank(body))

@@ -134,15 +134,10 @@ public static class MeasureEndpoints
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(catalog);
         ArgumentNullException.ThrowIfNull(options);
-        var parsed = await FhirRequestBody.ReadResourceAsync(request, options.Value, cancellationToken);
-        if (!parsed.Succeeded)
+        var (valueSet, refusal) = await FhirRequestBody.ReadResourceAsync<ValueSet>(request, options.Value, cancellationToken);
+        if (valueSet is null)
         {
-            return FhirResult.Outcome(parsed.Issues);
-        }
-
-        if (parsed.Resource is not ValueSet valueSet)
-        {
-            return FhirResult.Outcome(new FhirIssue(ErrorCatalogue.ResourceTypeMismatch, $"the body is a {parsed.Resource!.TypeName}, not a ValueSet", "ValueSet"));
+            return refusal!;
         }
 
         if (valueSet.Id != id)
@@ -298,15 +293,10 @@ public static class MeasureEndpoints
     {
         ArgumentNullException.ThrowIfNull(request);
         ArgumentNullException.ThrowIfNull(options);
-        var parsed = await FhirRequestBody.ReadResourceAsync(request, options.Value, cancellationToken);
-        if (!parsed.Succeeded)
+        var (body, refusal) = await FhirRequestBody.ReadResourceAsync<Parameters>(request, options.Value, cancellationToken);
+        if (body is null)
         {
-            return (null, FhirResult.Outcome(parsed.Issues));
-        }
-
-        if (parsed.Resource is not Parameters body)
-        {
-            return (null, FhirResult.Outcome(new FhirIssue(ErrorCatalogue.ResourceTypeMismatch, $"the body is a {parsed.Resource!.TypeName}, not Parameters", "Parameters")));
+            return (null, refusal);
         }
 
         var issues = new List<FhirIssue>();
