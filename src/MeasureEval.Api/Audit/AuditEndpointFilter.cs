@@ -25,7 +25,7 @@ public sealed class AuditEndpointFilter(AuditRecorder recorder) : IEndpointFilte
             return await next(context);
         }
 
-        var result = http.Request.RouteValues.TryGetValue("type", out var type) && "AuditEvent".Equals(type as string, StringComparison.Ordinal)
+        var result = http.Request.RouteValues.TryGetValue("type", out var type) && FhirResourceTypes.IsServerKept(type as string)
             ? FhirResult.Outcome(new FhirIssue(ErrorCatalogue.AuditEventNotAResource, "AuditEvent is written by the server only and read with GET /AuditEvent or GET /AuditEvent/{id}."))
             : await next(context);
         var status = Inspect(result, trail);
